@@ -1,0 +1,25 @@
+// Package stats computes the numbers behind a concordat table: ranks under a
+// declared tie rule, rank and product-moment correlations, their asymptotic
+// p-values and confidence intervals.
+//
+// Functions take flat float64 slices of equal length with no missing values
+// (the engine removes them first) and return float64 results. A result that
+// is undefined for the input (a constant column, too few observations) is
+// NaN; callers report it as null together with the reason. A panic inside a
+// kernel means a bug in the caller, never a user error.
+//
+// The pieces:
+//
+//   - Rank and TieShare: ranking under a TieRule, in O(n log n).
+//   - Pearson, SpearmanRho: product-moment r, and ρ as r on ranks.
+//   - CountPairs: one O(n log n) pass (Knight 1966) that classifies every
+//     pair as concordant, discordant or tied and keeps the tie-group sums;
+//     its methods give τ_b, τ_a, S and the tie-corrected Var(S), and later
+//     pair-based measures (τ_c, γ, Somers' d) need nothing more.
+//     KendallTauB is the shortcut.
+//   - CorrelationT, KendallNormal: asymptotic p-values, one function per
+//     reference distribution; PMethod names the method for the result
+//     table, so exact and permutation p-values slot in beside them.
+//   - FisherInterval, BonettWrightInterval, FiellerInterval: intervals on
+//     the atanh scale, each with its published standard error.
+package stats
