@@ -1,0 +1,218 @@
+package dataset
+
+import (
+	"context"
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/decimal128"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// writeOrchardParquet writes an invented orchard table of 7 rows to a
+// Parquet file, in row groups of rowGroup rows, and returns its path. The
+// tests expect exactly the values written here.
+func writeOrchardParquet(t testing.TB, rowGroup int64) string {
+	t.Helper()
+	mem := memory.DefaultAllocator
+	schema := arrow.NewSchema([]arrow.Field{
+		{Name: "plot", Type: arrow.BinaryTypes.String},
+		{Name: "block", Type: arrow.PrimitiveTypes.Int32},
+		{Name: "yield_kg", Type: arrow.PrimitiveTypes.Float64, Nullable: true},
+		{Name: "grade", Type: arrow.BinaryTypes.String, Nullable: true},
+		{Name: "trees", Type: arrow.PrimitiveTypes.Uint8},
+		{Name: "netted", Type: arrow.FixedWidthTypes.Boolean},
+		{Name: "price", Type: &arrow.Decimal128Type{Precision: 9, Scale: 2}, Nullable: true},
+		{Name: "variety", Type: &arrow.DictionaryType{IndexType: arrow.PrimitiveTypes.Int16, ValueType: arrow.BinaryTypes.String}},
+		{Name: "ratio", Type: arrow.PrimitiveTypes.Float32},
+		{Name: "site", Type: arrow.StructOf(arrow.Field{Name: "lat", Type: arrow.PrimitiveTypes.Float64})},
+	}, nil)
+	b := array.NewRecordBuilder(mem, schema)
+	defer b.Release()
+	valid := []bool{true, true, false, true, true, true, true}
+	b.Field(0).(*array.StringBuilder).AppendValues([]string{"P1", "P2", "P3", "P4", "P5", "P6", "P7"}, nil)
+	b.Field(1).(*array.Int32Builder).AppendValues([]int32{1, 1, 2, 2, 3, -1, 3}, nil)
+	b.Field(2).(*array.Float64Builder).AppendValues([]float64{10.5, math.NaN(), 0, math.Inf(1), -2.25, 7, 1e300}, valid)
+	b.Field(3).(*array.StringBuilder).AppendValues([]string{"fancy", "cull", "", "extra fancy", "standard", "fancy", "cull"}, []bool{true, true, true, false, true, true, true})
+	b.Field(4).(*array.Uint8Builder).AppendValues([]uint8{4, 5, 6, 250, 0, 1, 2}, nil)
+	b.Field(5).(*array.BooleanBuilder).AppendValues([]bool{true, false, true, false, true, false, true}, nil)
+	pb := b.Field(6).(*array.Decimal128Builder)
+	for i, c := range []int64{125, -50, 0, 99999, 1, 10, 300} {
+		if i == 2 {
+			pb.AppendNull()
+			continue
+		}
+		pb.Append(decimal128.FromI64(c))
+	}
+	vb := b.Field(7).(*array.BinaryDictionaryBuilder)
+	for _, v := range []string{"gala", "fuji", "gala", "braeburn", "fuji", "gala", "gala"} {
+		if err := vb.AppendString(v); err != nil {
+			t.Fatal(err)
+		}
+	}
+	b.Field(8).(*array.Float32Builder).AppendValues([]float32{0.5, 0.25, 1, 2, 4, 8, 16}, nil)
+	sb := b.Field(9).(*array.StructBuilder)
+	for i := range 7 {
+		sb.Append(true)
+		sb.FieldBuilder(0).(*array.Float64Builder).Append(float64(i))
+	}
+	rec := b.NewRecordBatch()
+	defer rec.Release()
+	tbl := array.NewTableFromRecords(schema, []arrow.RecordBatch{rec})
+	defer tbl.Release()
+
+	p := filepath.Join(t.TempDir(), "orchard.parquet")
+	f, err := os.Create(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	props := parquet.NewWriterProperties(parquet.WithAllocator(mem))
+	if err := pqarrow.WriteTable(tbl, f, rowGroup, props, pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema())); err != nil {
+		t.Fatal(err)
+	}
+	_ = f.Close() // WriteTable has closed it already
+	return p
+}
+
+func TestReadParquet(t *testing.T) {
+	defer func(n int) { batchRows = n }(batchRows)
+	for _, c := range []struct {
+		rowGroup int64
+		batch    int
+	}{{1024, 1 << 16}, {3, 2}, {2, 5}} {
+		batchRows = c.batch
+		p := writeOrchardParquet(t, c.rowGroup)
+		tab := mustRead(t, Spec{
+			Path:    p,
+			Format:  Parquet,
+			Missing: []string{"P3"}, // ignored for Parquet
+			Columns: []ColumnSpec{
+				// Row 3 holds "", listed here as the lowest level.
+				{Name: "grade", Kind: Ordinal, Levels: append([]string{""}, grades...)},
+				{Name: "yield_kg", Kind: Numeric},
+				{Name: "plot", Kind: Label},
+				{Name: "block", Kind: Label},
+				{Name: "trees", Kind: Numeric},
+				{Name: "price", Kind: Numeric},
+				{Name: "variety", Kind: Label},
+				{Name: "ratio", Kind: Numeric},
+			},
+		})
+		if tab.Rows != 7 {
+			t.Fatalf("row groups of %d, batches of %d: Rows = %d", c.rowGroup, c.batch, tab.Rows)
+		}
+		want := map[string][]float64{
+			"grade":    {4, 2, 1, nan, 3, 4, 2}, // row 4 is null
+			"yield_kg": {10.5, nan, nan, inf, -2.25, 7, 1e300},
+			"trees":    {4, 5, 6, 250, 0, 1, 2},
+			"price":    {1.25, -0.5, nan, 999.99, 0.01, 0.1, 3},
+			"ratio":    {0.5, 0.25, 1, 2, 4, 8, 16},
+		}
+		for name, w := range want {
+			if got := tab.Column(name).Values; !sameFloats(got, w) {
+				t.Errorf("%s = %v, want %v", name, got, w)
+			}
+		}
+		if got := tab.Column("plot").Labels; !slices.Equal(got, []string{"P1", "P2", "P3", "P4", "P5", "P6", "P7"}) {
+			t.Errorf("plot = %q", got)
+		}
+		if got := tab.Column("block").Labels; !slices.Equal(got, []string{"1", "1", "2", "2", "3", "-1", "3"}) {
+			t.Errorf("block = %q", got)
+		}
+		if got := tab.Column("variety").Labels; !slices.Equal(got, []string{"gala", "fuji", "gala", "braeburn", "fuji", "gala", "gala"}) {
+			t.Errorf("variety = %q", got)
+		}
+		sum, n, err := HashFile(p)
+		if err != nil || tab.SHA256 != sum || tab.Bytes != n {
+			t.Errorf("SHA256, Bytes = %s, %d; HashFile gives %s, %d, %v", tab.SHA256, tab.Bytes, sum, n, err)
+		}
+	}
+}
+
+func TestReadParquetGradeErrors(t *testing.T) {
+	p := writeOrchardParquet(t, 3)
+	// Row 3 holds "", which is not a level; row 4 is null, hence missing.
+	_, err := Read(context.Background(), Spec{Path: p, Format: Parquet, Columns: []ColumnSpec{
+		{Name: "plot", Kind: Label},
+		{Name: "grade", Kind: Ordinal, Levels: grades},
+	}})
+	want := p + `: row 3, column "grade": value "" is not one of the declared levels "cull", "standard", "fancy", "extra fancy" (hint: if empty cells mean "no value", add "" to the dataset's missing tokens)`
+	var ce *CellError
+	if !errors.As(err, &ce) || err.Error() != want || ce.Line != 0 {
+		t.Errorf("err\n got %v\nwant %s", err, want)
+	}
+	// An integer column read as ordinal matches its decimal text.
+	_, err = Read(context.Background(), Spec{Path: p, Format: Parquet, Columns: []ColumnSpec{
+		{Name: "block", Kind: Ordinal, Levels: []string{"1", "2", "3"}},
+	}})
+	if !errors.As(err, &ce) || ce.Row != 6 || ce.Value != "-1" || ce.Column != "block" {
+		t.Errorf("block as ordinal: err = %v, want row 6 value -1", err)
+	}
+}
+
+func TestReadParquetTypeErrors(t *testing.T) {
+	p := writeOrchardParquet(t, 1024)
+	for _, c := range []struct {
+		col  ColumnSpec
+		want string
+	}{
+		{ColumnSpec{Name: "grade", Kind: Numeric}, `column "grade" holds text (utf8), not numbers; declare its levels to read it as ordinal`},
+		{ColumnSpec{Name: "variety", Kind: Numeric}, `column "variety" holds text`},
+		{ColumnSpec{Name: "netted", Kind: Numeric}, `column "netted" has type bool, which cannot be read as numeric`},
+		{ColumnSpec{Name: "netted", Kind: Label}, `column "netted" has type bool, which cannot be read as label`},
+		{ColumnSpec{Name: "yield_kg", Kind: Label}, `column "yield_kg" has type float64, which cannot be read as label`},
+		{ColumnSpec{Name: "site", Kind: Numeric}, `column "site" has the nested type struct<lat: float64>, which cannot be read`},
+	} {
+		_, err := Read(context.Background(), Spec{Path: p, Format: Parquet, Columns: []ColumnSpec{c.col}})
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), p) {
+			t.Errorf("%s as %s: err = %v, want it to name the file and contain %q", c.col.Name, c.col.Kind, err, c.want)
+		}
+	}
+	_, err := Read(context.Background(), Spec{Path: p, Format: Parquet, Columns: []ColumnSpec{{Name: "yeild_kg", Kind: Numeric}}})
+	var me *MissingColumnError
+	if !errors.As(err, &me) || me.Suggest != "yield_kg" {
+		t.Errorf("err = %v, want a MissingColumnError suggesting yield_kg", err)
+	}
+	// A CSV file is not a Parquet file.
+	if _, err := Read(context.Background(), Spec{Path: "testdata/orchard_harvest.csv", Format: Parquet}); err == nil || !strings.Contains(err.Error(), "not a readable Parquet file") {
+		t.Errorf("CSV as Parquet: err = %v", err)
+	}
+}
+
+func TestParquetHeaderAndEmpty(t *testing.T) {
+	p := writeOrchardParquet(t, 1024)
+	h, err := Header(p, Parquet)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := []string{"plot", "block", "yield_kg", "grade", "trees", "netted", "price", "variety", "ratio", "site"}; !slices.Equal(h, want) {
+		t.Errorf("Header = %q, want %q", h, want)
+	}
+
+	// A table with a schema and no rows.
+	schema := arrow.NewSchema([]arrow.Field{{Name: "x", Type: arrow.PrimitiveTypes.Float64}}, nil)
+	tbl := array.NewTableFromRecords(schema, nil)
+	defer tbl.Release()
+	q := filepath.Join(t.TempDir(), "empty.parquet")
+	f, err := os.Create(q)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := pqarrow.WriteTable(tbl, f, 1024, nil, pqarrow.DefaultWriterProps()); err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	tab := mustRead(t, Spec{Path: q, Format: Parquet, Columns: []ColumnSpec{{Name: "x", Kind: Numeric}}})
+	if tab.Rows != 0 || len(tab.Columns[0].Values) != 0 {
+		t.Errorf("empty Parquet: %+v", tab)
+	}
+}

@@ -1,0 +1,214 @@
+package dataset
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+)
+
+// ColumnSpec asks for one column of a file.
+type ColumnSpec struct {
+	Name string // exactly as in the header or the Parquet schema
+	Kind Kind
+	// Levels lists an Ordinal column's labels from low to high; label
+	// Levels[i] is read as i+1. It must be empty for the other kinds.
+	Levels []string
+}
+
+// Spec says which file to read and how.
+type Spec struct {
+	Path   string // the file to read, already resolved by the caller
+	Format Format
+	// Missing lists the cells read as missing in CSV and TSV files, in
+	// every kind of column. A cell must equal a token exactly: no trimming,
+	// no case folding. Include "" for empty cells.
+	Missing []string
+	// Columns are the only columns read; they are returned in this order.
+	Columns []ColumnSpec
+}
+
+// Column holds one column's values, one per data row.
+type Column struct {
+	Name string
+	Kind Kind
+	// Values holds a Numeric or Ordinal column's values; NaN is missing.
+	// An Ordinal label Levels[i] is i+1. Nil for a Label column.
+	Values []float64
+	// Labels holds a Label column's text; a missing cell is "". Nil for the
+	// other kinds.
+	Labels []string
+	// Missing marks a Label column's missing cells. Nil for the other
+	// kinds, whose missing values are NaN.
+	Missing []bool
+}
+
+// Table is what Read returns: the file's identity and the requested columns.
+type Table struct {
+	Path    string
+	SHA256  string // lowercase hex SHA-256 of the file's bytes
+	Bytes   int64  // the file's size
+	Rows    int    // data rows, the header excluded
+	Columns []Column
+}
+
+// Column returns the column with the given name, or nil.
+func (t *Table) Column(name string) *Column {
+	for i := range t.Columns {
+		if t.Columns[i].Name == name {
+			return &t.Columns[i]
+		}
+	}
+	return nil
+}
+
+// checkSpec reports a spec that a caller should never have built: these are
+// recipe problems the recipe package is expected to catch first.
+func checkSpec(spec Spec) error {
+	seen := make(map[string]bool, len(spec.Columns))
+	for _, c := range spec.Columns {
+		if seen[c.Name] {
+			return fmt.Errorf("column %q is requested twice", c.Name)
+		}
+		seen[c.Name] = true
+		switch c.Kind {
+		case Numeric, Label:
+			if len(c.Levels) > 0 {
+				return fmt.Errorf("column %q: levels are given but the column is %s, not ordinal", c.Name, c.Kind)
+			}
+		case Ordinal:
+			if len(c.Levels) == 0 {
+				return fmt.Errorf("column %q: an ordinal column needs its levels", c.Name)
+			}
+			lv := make(map[string]bool, len(c.Levels))
+			for _, l := range c.Levels {
+				if lv[l] {
+					return fmt.Errorf("column %q: level %q is listed twice", c.Name, l)
+				}
+				lv[l] = true
+			}
+		default:
+			return fmt.Errorf("column %q: invalid kind %d", c.Name, int(c.Kind))
+		}
+	}
+	return nil
+}
+
+// sink receives one column's cells as text and stores them by kind. It is
+// shared by the CSV reader and by Parquet text columns.
+type sink struct {
+	col     *Column
+	spec    ColumnSpec
+	missing map[string]bool
+	levels  map[string]float64 // Ordinal
+	intern  map[string]string  // Label: one string per distinct label
+}
+
+func newSink(col *Column, cs ColumnSpec, missing map[string]bool) *sink {
+	s := &sink{col: col, spec: cs, missing: missing}
+	switch cs.Kind {
+	case Ordinal:
+		s.levels = make(map[string]float64, len(cs.Levels))
+		for i, l := range cs.Levels {
+			s.levels[l] = float64(i + 1)
+		}
+	case Label:
+		s.intern = make(map[string]string)
+	}
+	return s
+}
+
+// grow makes room for n more rows.
+func (s *sink) grow(n int) {
+	c := s.col
+	if c.Kind == Label {
+		if cap(c.Labels)-len(c.Labels) < n {
+			c.Labels = growTo(c.Labels, len(c.Labels)+n)
+			c.Missing = growTo(c.Missing, len(c.Labels)+n)
+		}
+		return
+	}
+	if cap(c.Values)-len(c.Values) < n {
+		c.Values = growTo(c.Values, len(c.Values)+n)
+	}
+}
+
+// growTo returns s with capacity at least n, doubling to keep appends
+// amortised.
+func growTo[T any](s []T, n int) []T {
+	if cap(s) >= n {
+		return s
+	}
+	nc := max(n, 2*cap(s))
+	t := make([]T, len(s), nc)
+	copy(t, s)
+	return t
+}
+
+// add stores one cell; a non-nil cellProblem says why it cannot be read.
+func (s *sink) add(cell string) *cellProblem {
+	c := s.col
+	if s.missing[cell] {
+		if c.Kind == Label {
+			c.Labels = append(c.Labels, "")
+			c.Missing = append(c.Missing, true)
+		} else {
+			c.Values = append(c.Values, nan)
+		}
+		return nil
+	}
+	switch c.Kind {
+	case Numeric:
+		v, p := parseNumber(cell)
+		if p != nil {
+			return p
+		}
+		c.Values = append(c.Values, v)
+	case Ordinal:
+		v, ok := s.levels[cell]
+		if !ok {
+			return levelProblem(cell, s.spec.Levels)
+		}
+		c.Values = append(c.Values, v)
+	case Label:
+		l, ok := s.intern[cell]
+		if !ok {
+			l = strings.Clone(cell)
+			s.intern[l] = l
+		}
+		c.Labels = append(c.Labels, l)
+		c.Missing = append(c.Missing, false)
+	}
+	return nil
+}
+
+// addMissing stores a missing value (a Parquet null).
+func (s *sink) addMissing() {
+	c := s.col
+	if c.Kind == Label {
+		c.Labels = append(c.Labels, "")
+		c.Missing = append(c.Missing, true)
+		return
+	}
+	c.Values = append(c.Values, nan)
+}
+
+// levelProblem explains a label that is not among the levels, with a hint
+// when it differs from one only in case or surrounding spaces.
+func levelProblem(cell string, levels []string) *cellProblem {
+	q := make([]string, len(levels))
+	for i, l := range levels {
+		q[i] = strconv.Quote(l)
+	}
+	p := &cellProblem{reason: "is not one of the declared levels " + strings.Join(q, ", ")}
+	t := strings.TrimSpace(cell)
+	for _, l := range levels {
+		if strings.EqualFold(t, strings.TrimSpace(l)) {
+			p.hint = fmt.Sprintf("did you mean %q? levels must match exactly, including case and spaces", l)
+			break
+		}
+	}
+	if cell == "" && p.hint == "" {
+		p.hint = `if empty cells mean "no value", add "" to the dataset's missing tokens`
+	}
+	return p
+}
