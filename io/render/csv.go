@@ -1,0 +1,48 @@
+package render
+
+import (
+	"bufio"
+	"encoding/csv"
+	"math"
+)
+
+// encodeCSV writes t as CSV: a header row of column names, then one record
+// per row. Fields are quoted as RFC 4180 describes (by encoding/csv) and
+// records end in LF, which every CSV reader we target accepts and which
+// keeps the files diff-friendly in git. An undefined number is an empty
+// field; a list is joined with "; ". Title and Notes are not written.
+func encodeCSV(w *bufio.Writer, t *Table, digits int) error {
+	cw := csv.NewWriter(w)
+	if err := cw.Write(t.Columns); err != nil {
+		return err
+	}
+	record := make([]string, len(t.Columns))
+	for _, row := range t.Rows {
+		for c, cell := range row {
+			record[c] = csvCell(cell, digits)
+		}
+		if err := cw.Write(record); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// csvCell returns the text of one cell in CSV, before quoting.
+func csvCell(c Cell, digits int) string {
+	switch c.kind {
+	case KindText:
+		return c.text
+	case KindInt:
+		return itoa(c.i)
+	case KindReal, KindProb:
+		if math.IsNaN(c.f) {
+			return ""
+		}
+		return fixed(c.f, digits)
+	case KindList:
+		return joinList(c.items)
+	}
+	panic("render: cell of invalid kind " + c.kind.String()) // Encode checked the table
+}

@@ -1,0 +1,347 @@
+package render
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"flag"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+var update = flag.Bool("update", false, "rewrite the golden files in testdata/")
+
+// orchard is a small invented result table: canopy shade against fruit grade
+// in an orchard survey, with a tiny p-value, an undefined estimate and
+// warnings.
+func orchard() *Table {
+	return &Table{
+		Title:   "Canopy shade and fruit grade (invented data)",
+		Columns: []string{"x", "y", "measure", "n", "estimate", "p", "warnings"},
+		Rows: [][]Cell{
+			{Text("shade_pct"), Text("grade"), Text("spearman"), Int(48), Real(-0.4127538), Prob(0.0035121), List(nil)},
+			{Text("shade_pct"), Text("grade"), Text("kendall_b"), Int(48), Real(-0.30519), Prob(2.7e-7), List([]string{})},
+			{Text("shade_pct"), Text("sugar_brix"), Text("spearman"), Int(47), Real(-0.0000004), Prob(0.99981), List([]string{"1 row dropped: sugar_brix missing"})},
+			{Text("tree_age"), Text("grade|class"), Text("spearman"), Int(3), Real(math.NaN()), Prob(math.NaN()), List([]string{"tree_age is constant", `label "extra fancy", merged`})},
+		},
+		Notes: []string{"p-values are two-sided, adjusted by Holm's method.", "— marks a value that is undefined; see warnings."},
+	}
+}
+
+func TestGolden(t *testing.T) {
+	for _, tc := range []struct {
+		format Format
+		file   string
+		digits int
+	}{
+		{Markdown, "orchard.md", 3},
+		{CSV, "orchard.csv", 3},
+		{CSV, "orchard_shortest.csv", -1},
+		{JSON, "orchard.json", 3},
+	} {
+		t.Run(tc.file, func(t *testing.T) {
+			var buf bytes.Buffer
+			if err := Encode(&buf, orchard(), tc.format, tc.digits); err != nil {
+				t.Fatal(err)
+			}
+			golden := filepath.Join("testdata", tc.file)
+			if *update {
+				if err := os.WriteFile(golden, buf.Bytes(), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			}
+			want, err := os.ReadFile(golden)
+			if err != nil {
+				t.Fatalf("%v (run go test -update to create it)", err)
+			}
+			if !bytes.Equal(buf.Bytes(), want) {
+				t.Errorf("%s differs from golden file %s:\ngot:\n%s\nwant:\n%s", tc.format, golden, buf.Bytes(), want)
+			}
+			// Determinism contract: the same table gives the same bytes.
+			var again bytes.Buffer
+			if err := Encode(&again, orchard(), tc.format, tc.digits); err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(buf.Bytes(), again.Bytes()) {
+				t.Error("two encodings of the same table differ")
+			}
+		})
+	}
+}
+
+func encode(t *testing.T, tab *Table, f Format, digits int) string {
+	t.Helper()
+	var buf bytes.Buffer
+	if err := Encode(&buf, tab, f, digits); err != nil {
+		t.Fatalf("Encode %s: %v", f, err)
+	}
+	return buf.String()
+}
+
+func TestNull(t *testing.T) {
+	tab := &Table{Columns: []string{"estimate", "p"}, Rows: [][]Cell{{Real(math.NaN()), Prob(math.NaN())}}}
+	if got, want := encode(t, tab, Markdown, 3), "| estimate |   p |\n| -------: | --: |\n|        — |   — |\n"; got != want {
+		t.Errorf("Markdown:\ngot  %q\nwant %q", got, want)
+	}
+	if got, want := encode(t, tab, CSV, 3), "estimate,p\n,\n"; got != want {
+		t.Errorf("CSV: got %q, want %q", got, want)
+	}
+	if got, want := encode(t, tab, JSON, 3), "[\n  {\n    \"estimate\": null,\n    \"p\": null\n  }\n]\n"; got != want {
+		t.Errorf("JSON: got %q, want %q", got, want)
+	}
+	// Infinities are not JSON numbers; they are written as null.
+	inf := &Table{Columns: []string{"a", "b"}, Rows: [][]Cell{{Real(math.Inf(1)), Real(math.Inf(-1))}}}
+	if got, want := encode(t, inf, JSON, 3), "[\n  {\n    \"a\": null,\n    \"b\": null\n  }\n]\n"; got != want {
+		t.Errorf("JSON infinities: got %q, want %q", got, want)
+	}
+	if got, want := encode(t, inf, CSV, 3), "a,b\nInf,-Inf\n"; got != want {
+		t.Errorf("CSV infinities: got %q, want %q", got, want)
+	}
+}
+
+func TestNegativeZero(t *testing.T) {
+	negZero := math.Copysign(0, -1)
+	for _, tc := range []struct {
+		f      float64
+		digits int
+		want   string
+	}{
+		{-0.0000004, 3, "0.000"},
+		{-0.0004999, 3, "0.000"},
+		{-0.0005001, 3, "-0.001"},
+		{negZero, 3, "0.000"},
+		{negZero, 0, "0"},
+		{negZero, -1, "0"},
+		{-1e-300, 3, "0.000"},
+		{-1e-300, -1, "-1e-300"},
+		{-0.25, 1, "-0.2"}, // round half to even
+	} {
+		if got := fixed(tc.f, tc.digits); got != tc.want {
+			t.Errorf("fixed(%g, %d) = %q, want %q", tc.f, tc.digits, got, tc.want)
+		}
+	}
+	tab := &Table{Columns: []string{"r"}, Rows: [][]Cell{{Real(negZero)}}}
+	if got, want := encode(t, tab, JSON, 3), "[\n  {\n    \"r\": 0\n  }\n]\n"; got != want {
+		t.Errorf("JSON -0: got %q, want %q", got, want)
+	}
+	if got, want := encode(t, tab, CSV, -1), "r\n0\n"; got != want {
+		t.Errorf("CSV -0: got %q, want %q", got, want)
+	}
+}
+
+func TestProbBound(t *testing.T) {
+	for _, tc := range []struct {
+		p      float64
+		digits int
+		want   string
+	}{
+		{0.00004, 3, "< 0.001"},
+		{0, 3, "< 0.001"},
+		{0.0009996, 3, "< 0.001"}, // would round to 0.001, but is below it
+		{0.001, 3, "0.001"},
+		{0.0123, 3, "0.012"},
+		{1, 3, "1.000"},
+		{2e-5, 4, "< 0.0001"},
+		{2e-5, -1, "2e-05"}, // shortest: no bound
+	} {
+		if got := mdCell(Prob(tc.p), tc.digits); got != tc.want {
+			t.Errorf("Markdown Prob(%g) with %d digits = %q, want %q", tc.p, tc.digits, got, tc.want)
+		}
+	}
+	// A Real is never shown as a bound, and CSV never shows one.
+	if got := mdCell(Real(0.00004), 3); got != "0.000" {
+		t.Errorf("Markdown Real(0.00004) = %q, want 0.000", got)
+	}
+	if got := csvCell(Prob(0.00004), 3); got != "0.000" {
+		t.Errorf("CSV Prob(0.00004) = %q, want 0.000", got)
+	}
+}
+
+func TestMarkdownEscape(t *testing.T) {
+	tab := &Table{
+		Title:   "block A | block B\nspring",
+		Columns: []string{"a|b"},
+		Rows:    [][]Cell{{Text("north|south\r\nrow")}, {List([]string{"x|y", "z"})}},
+		Notes:   []string{"one\ntwo"},
+	}
+	want := "block A \\| block B spring\n\n" +
+		"| a\\|b             |\n" +
+		"| ---------------- |\n" +
+		"| north\\|south row |\n" +
+		"| x\\|y; z          |\n" +
+		"\n- one two\n"
+	if got := encode(t, tab, Markdown, 3); got != want {
+		t.Errorf("got:\n%s\nwant:\n%s", got, want)
+	}
+}
+
+func TestMarkdownAlignment(t *testing.T) {
+	// A column is numeric only when all its cells are numbers; mixed and
+	// empty tables are left-aligned.
+	tab := &Table{
+		Columns: []string{"n", "mixed"},
+		Rows:    [][]Cell{{Int(5), Int(1)}, {Int(12), Text("all")}},
+	}
+	want := "|   n | mixed |\n| --: | ----- |\n|   5 | 1     |\n|  12 | all   |\n"
+	if got := encode(t, tab, Markdown, 3); got != want {
+		t.Errorf("got:\n%s\nwant:\n%s", got, want)
+	}
+	empty := &Table{Columns: []string{"n"}}
+	if got, want := encode(t, empty, Markdown, 3), "| n   |\n| --- |\n"; got != want {
+		t.Errorf("empty table: got %q, want %q", got, want)
+	}
+}
+
+func TestCSVEscape(t *testing.T) {
+	fields := []string{`plain`, `with, comma`, `with "quotes"`, "two\nlines", ` lead space`, ``}
+	row := make([]Cell, len(fields))
+	cols := make([]string, len(fields))
+	for i, s := range fields {
+		row[i] = Text(s)
+		cols[i] = "c" + strconv.Itoa(i)
+	}
+	cols[1] = "name, with comma"
+	row = append(row, List([]string{"a, b", `"c"`}))
+	cols = append(cols, "warnings")
+	out := encode(t, &Table{Columns: cols, Rows: [][]Cell{row}}, CSV, 3)
+
+	records, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	if err != nil {
+		t.Fatalf("read back: %v\n%s", err, out)
+	}
+	if len(records) != 2 {
+		t.Fatalf("read back %d records, want 2", len(records))
+	}
+	want := append(fields, `a, b; "c"`)
+	for i := range want {
+		if records[0][i] != cols[i] {
+			t.Errorf("header %d = %q, want %q", i, records[0][i], cols[i])
+		}
+		if records[1][i] != want[i] {
+			t.Errorf("field %d = %q, want %q", i, records[1][i], want[i])
+		}
+	}
+	if !strings.Contains(out, `"with ""quotes"""`) {
+		t.Errorf("quotes not doubled as RFC 4180 says:\n%s", out)
+	}
+}
+
+func TestJSONRoundTrip(t *testing.T) {
+	special := []float64{
+		0.1, 1.0 / 3, -2.5, 1e-6, 9.99999e-7, 1e-7, 1e20, 1e21, 123456789012345678,
+		math.SmallestNonzeroFloat64, math.MaxFloat64, -math.MaxFloat64, 2.7e-7, 0,
+	}
+	rng := rand.New(rand.NewPCG(20261202, 1)) // fixed seed
+	for range 500 {
+		special = append(special, math.Float64frombits(rng.Uint64()))
+	}
+	tab := &Table{Columns: []string{"z_real", "a_prob", "n", "label", "warnings"}}
+	var want []float64
+	for i, f := range special {
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			continue
+		}
+		want = append(want, f)
+		tab.Rows = append(tab.Rows, []Cell{
+			Real(f), Prob(f), Int(math.MaxInt64 - int64(i)), Text("näive <&> \"q\"\t\u2028"), List([]string{"w" + strconv.Itoa(i)}),
+		})
+	}
+	out := encode(t, tab, JSON, 3)
+
+	dec := json.NewDecoder(strings.NewReader(out))
+	dec.UseNumber()
+	var got []map[string]any
+	if err := dec.Decode(&got); err != nil {
+		t.Fatalf("decode: %v", err)
+	}
+	if len(got) != len(want) {
+		t.Fatalf("decoded %d objects, want %d", len(got), len(want))
+	}
+	for i, obj := range got {
+		for _, key := range []string{"z_real", "a_prob"} {
+			f, err := obj[key].(json.Number).Float64()
+			if err != nil || f != want[i] {
+				t.Errorf("row %d %s = %v (%v), want %v", i, key, obj[key], err, want[i])
+			}
+		}
+		n, err := obj["n"].(json.Number).Int64()
+		if err != nil || n != math.MaxInt64-int64(i) {
+			t.Errorf("row %d n = %v (%v)", i, obj["n"], err)
+		}
+		if obj["label"] != "näive <&> \"q\"\t\u2028" {
+			t.Errorf("row %d label = %q", i, obj["label"])
+		}
+		if w, ok := obj["warnings"].([]any); !ok || len(w) != 1 || w[0] != "w"+strconv.Itoa(i) {
+			t.Errorf("row %d warnings = %v", i, obj["warnings"])
+		}
+	}
+}
+
+func TestJSONKeyOrder(t *testing.T) {
+	// Columns in an order that is neither alphabetical nor Go map order.
+	cols := []string{"test", "x", "y", "estimate", "alternative", "warnings"}
+	row := []Cell{Text("x"), Text("a"), Text("b"), Real(0.5), Text("two-sided"), List(nil)}
+	out := encode(t, &Table{Columns: cols, Rows: [][]Cell{row, row}}, JSON, 3)
+	member := regexp.MustCompile(`(?m)^    "([^"]*)": `)
+	var keys []string
+	for _, m := range member.FindAllStringSubmatch(out, -1) {
+		keys = append(keys, m[1])
+	}
+	want := strings.Join(append(cols, cols...), ",")
+	if strings.Join(keys, ",") != want {
+		t.Errorf("keys in order %v, want %v", keys, want)
+	}
+	// And the text is valid JSON.
+	var v []map[string]any
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func TestJSONEmpty(t *testing.T) {
+	if got := encode(t, &Table{Columns: []string{"x"}}, JSON, 3); got != "[]\n" {
+		t.Errorf("empty table: got %q, want %q", got, "[]\n")
+	}
+}
+
+func TestEncodeErrors(t *testing.T) {
+	for name, tc := range map[string]struct {
+		tab *Table
+		f   Format
+	}{
+		"short row":      {&Table{Columns: []string{"a", "b"}, Rows: [][]Cell{{Int(1)}}}, CSV},
+		"zero cell":      {&Table{Columns: []string{"a"}, Rows: [][]Cell{{{}}}}, JSON},
+		"invalid format": {&Table{Columns: []string{"a"}}, Format(0)},
+		"nil table":      {nil, Markdown},
+	} {
+		var buf bytes.Buffer
+		err := Encode(&buf, tc.tab, tc.f, 3)
+		if err == nil {
+			t.Errorf("%s: no error", name)
+		}
+		if buf.Len() != 0 {
+			t.Errorf("%s: wrote %q before failing", name, buf.String())
+		}
+	}
+}
+
+func TestParseFormat(t *testing.T) {
+	for _, f := range []Format{Markdown, CSV, JSON} {
+		got, err := ParseFormat(f.String())
+		if err != nil || got != f {
+			t.Errorf("ParseFormat(%q) = %v, %v", f.String(), got, err)
+		}
+	}
+	if _, err := ParseFormat("xlsx"); err == nil {
+		t.Error("ParseFormat(xlsx): no error")
+	}
+	if got := Format(0).String(); got != "Format(0)" {
+		t.Errorf("Format(0).String() = %q", got)
+	}
+}
