@@ -1,0 +1,169 @@
+package ledger
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"syscall"
+)
+
+// Append adds rec as the last line of the ledger at path and returns the
+// record as stored.
+//
+// It first verifies the existing ledger and refuses to extend one that fails
+// (returning the *ChainError), so a break is never buried under new lines.
+// It fills Format (when empty), RunSHA256 and PrevSHA256, and replaces nil
+// Inputs, Steps and Outputs with empty lists. It then writes the existing
+// bytes plus the new line to a temporary file in the same folder, syncs it,
+// renames it over the ledger and syncs the folder: a crash leaves the old
+// ledger or the new one, never a torn line.
+//
+// Two Appends to one ledger on one machine are serialized by an exclusive
+// flock(2) on "<path>.lock", held from the read to the rename; the lock file
+// stays in place. Locks on network file systems may not be honoured.
+func Append(path string, rec Record) (Record, error) {
+	if rec.Format == "" {
+		rec.Format = FormatV1
+	}
+	if rec.Format != FormatV1 {
+		return Record{}, fmt.Errorf("append to ledger %q: unsupported format %q", path, rec.Format)
+	}
+	if rec.Tool.Modules == nil {
+		rec.Tool.Modules = []Module{}
+	}
+	if rec.Inputs == nil {
+		rec.Inputs = []Input{}
+	}
+	if rec.Steps == nil {
+		rec.Steps = []Step{}
+	}
+	if rec.Outputs == nil {
+		rec.Outputs = []Output{}
+	}
+	if rec.Settings != nil && !json.Valid(rec.Settings) {
+		return Record{}, fmt.Errorf("append to ledger %q: settings are not valid JSON", path)
+	}
+
+	unlock, err := lock(path + ".lock")
+	if err != nil {
+		return Record{}, fmt.Errorf("append to ledger %q: %w", path, err)
+	}
+	defer unlock()
+
+	old, err := os.ReadFile(path)
+	if err != nil && !errors.Is(err, fs.ErrNotExist) {
+		return Record{}, fmt.Errorf("append to ledger %q: %w", path, err)
+	}
+	_, last, err := verify(path, old)
+	if err != nil {
+		return Record{}, err // a *ChainError naming the broken line
+	}
+
+	rec.RunSHA256, err = runHash(&rec)
+	if err != nil {
+		return Record{}, fmt.Errorf("append to ledger %q: %w", path, err)
+	}
+	rec.PrevSHA256 = ""
+	if len(old) > 0 {
+		rec.PrevSHA256 = sumHex(last)
+	}
+	line, err := encodeLine(&rec)
+	if err != nil {
+		return Record{}, fmt.Errorf("append to ledger %q: %w", path, err)
+	}
+	if err := replace(path, append(old, line...)); err != nil {
+		return Record{}, fmt.Errorf("append to ledger %q: %w", path, err)
+	}
+
+	// Return the record as a reader will see it.
+	stored, err := parseLine(line[:len(line)-1])
+	if err != nil {
+		return Record{}, fmt.Errorf("append to ledger %q: reread: %w", path, err)
+	}
+	return stored, nil
+}
+
+// encodeLine returns rec as one line of compact JSON ending in a newline.
+// <, > and & are written as they are (the ledger is read by people and git,
+// not browsers).
+func encodeLine(rec *Record) ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(rec); err != nil { // Encode ends the value with "\n"
+		return nil, fmt.Errorf("encode record: %w", err)
+	}
+	return buf.Bytes(), nil
+}
+
+// lock takes an exclusive flock on the file at path, creating it if needed,
+// and waits until it is granted. The returned function releases it.
+func lock(path string) (unlock func(), err error) {
+	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE, 0o644)
+	if err != nil {
+		return nil, fmt.Errorf("lock: %w", err)
+	}
+	for {
+		err = syscall.Flock(int(f.Fd()), syscall.LOCK_EX)
+		if err != syscall.EINTR {
+			break
+		}
+	}
+	if err != nil {
+		f.Close()
+		return nil, fmt.Errorf("lock %q: %w", path, err)
+	}
+	return func() {
+		syscall.Flock(int(f.Fd()), syscall.LOCK_UN)
+		f.Close()
+	}, nil
+}
+
+// replace writes data to a hidden temporary file beside path, syncs it, and
+// renames it over path, keeping path's permissions when it exists (0644
+// otherwise); then it syncs the folder so the rename survives a crash.
+func replace(path string, data []byte) error {
+	dir, base := filepath.Split(path)
+	if dir == "" {
+		dir = "."
+	}
+	mode := fs.FileMode(0o644)
+	if info, err := os.Stat(path); err == nil {
+		mode = info.Mode().Perm()
+	}
+	f, err := os.CreateTemp(dir, "."+base+".tmp-*")
+	if err != nil {
+		return err
+	}
+	temp := f.Name()
+	_, err = f.Write(data)
+	if err == nil {
+		err = f.Chmod(mode)
+	}
+	if err == nil {
+		err = f.Sync()
+	}
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(temp, path)
+	}
+	if err != nil {
+		os.Remove(temp)
+		return err
+	}
+	d, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	err = d.Sync()
+	if cerr := d.Close(); err == nil {
+		err = cerr
+	}
+	return err
+}
