@@ -1,0 +1,241 @@
+package recipe
+
+import (
+	"fmt"
+
+	"github.com/hashicorp/hcl/v2"
+
+	"concordat/engine/stats"
+)
+
+// Plan is a recipe with every reference resolved and every default filled
+// in. Blocks appear in the order the recipe declares them.
+type Plan struct {
+	Path   string               // recipe path as given
+	Dir    string               // folder that relative paths are resolved against
+	Name   string               // file name without .hcl; the ledger is <Dir>/<Name>.ledger.jsonl
+	Source []byte               // the recipe bytes, for hashing
+	Files  map[string]*hcl.File // parsed files, for hcl.NewDiagnosticTextWriter
+
+	Title string
+	Seed  int64 // default 1
+
+	Datasets []*Dataset
+	Ties     []*Ties // the ties blocks the recipe declares (not the built-in default)
+	Pairings []*Pairing
+	Tests    []*Test
+	Tables   []*Table
+}
+
+// LedgerPath returns where the run ledger of this recipe lives:
+// <Dir>/<Name>.ledger.jsonl.
+func (p *Plan) LedgerPath() string { return ledgerPath(p.Dir, p.Name) }
+
+// DataFormat is the file format of a dataset.
+type DataFormat string
+
+// Dataset formats, by recipe word.
+const (
+	DataCSV     DataFormat = "csv"
+	DataTSV     DataFormat = "tsv"
+	DataParquet DataFormat = "parquet"
+)
+
+// Dataset is a data file and how to read it.
+type Dataset struct {
+	Name          string
+	Path          string // resolved: filepath.Join(Plan.Dir, PathAsWritten) unless absolute
+	PathAsWritten string
+	Format        DataFormat // from the extension unless `format` says otherwise
+	SHA256        string     // optional pin: 64 lowercase hex digits, or ""
+	Missing       []string   // tokens read as missing; default ["", "NA"]
+
+	// Levels maps an ordinal text column to its labels, low to high.
+	Levels  map[string][]string
+	Columns []*ColumnDecl // the column blocks, in recipe order
+
+	DeclRange   hcl.Range
+	PathRange   hcl.Range // where the path was written, for "cannot read" diagnostics
+	SHA256Range hcl.Range // where the pin was written, for "data file changed" diagnostics
+}
+
+// ColumnDecl is one `column "name" { levels = [...] }` block.
+type ColumnDecl struct {
+	Name        string
+	Levels      []string
+	DeclRange   hcl.Range // the block header
+	LevelsRange hcl.Range // the levels list, for "label not in levels" data errors
+}
+
+// MissingRule says how observations with a missing value are dropped. The
+// zero value is invalid.
+type MissingRule int
+
+const (
+	_        MissingRule = iota
+	Pairwise             // drop a row only for the pairs whose x or y is missing in it
+	Listwise             // drop a row from every pair when any listed column is missing in it
+)
+
+// String returns the recipe word for the rule.
+func (m MissingRule) String() string {
+	switch m {
+	case Pairwise:
+		return "pairwise"
+	case Listwise:
+		return "listwise"
+	}
+	return fmt.Sprintf("MissingRule(%d)", int(m))
+}
+
+// Pairing says which columns of a dataset are correlated with which.
+type Pairing struct {
+	Name    string
+	Dataset *Dataset
+
+	X, Y, Columns []string // as written; either X and Y, or Columns
+	// Pairs is X×Y with x outer and y inner, or every i<j pair of Columns,
+	// in the order written.
+	Pairs   []Pair
+	Missing MissingRule // default Pairwise
+	By      string      // optional grouping column, "" when absent
+
+	// ColumnRanges says where each column name (including By) was first
+	// written, so that the engine can point at it when the data lacks it.
+	ColumnRanges map[string]hcl.Range
+
+	DeclRange hcl.Range
+}
+
+// Pair is one (x, y) column pair.
+type Pair struct{ X, Y string }
+
+// Ties is a tie-handling policy.
+type Ties struct {
+	Name      string
+	Rule      stats.TieRule // default stats.TieAverage
+	MaxShare  float64       // warn when a column has a larger share of tied values; default 0.3, in (0, 1]
+	Builtin   bool          // the default used by tests that name no ties block
+	DeclRange hcl.Range
+}
+
+// defaultTies returns the policy of a test that names no ties block.
+func defaultTies() *Ties {
+	return &Ties{Name: "average", Rule: stats.TieAverage, MaxShare: defaultMaxShare, Builtin: true}
+}
+
+// PMethod is how p-values are computed. The zero value is invalid.
+type PMethod int
+
+const (
+	_           PMethod = iota
+	PAuto               // the engine picks; in this version always an asymptotic approximation
+	PAsymptotic         // a large-sample approximation (t or normal)
+	// TODO: PExact and PPermutation, once engine/stats has exact null
+	// distributions and seeded permutation streams; the recipe words
+	// "exact" and "permutation" are reserved for them and rejected for now.
+)
+
+// String returns the recipe word for the method.
+func (m PMethod) String() string {
+	switch m {
+	case PAuto:
+		return "auto"
+	case PAsymptotic:
+		return "asymptotic"
+	}
+	return fmt.Sprintf("PMethod(%d)", int(m))
+}
+
+// IntervalMethod is how confidence intervals are computed. The zero value is
+// invalid.
+type IntervalMethod int
+
+const (
+	_ IntervalMethod = iota
+	// IntervalFisher uses a Fisher-type z transform, z = atanh(r), with a
+	// standard error that depends on the measure:
+	//
+	//	pearson:   1/√(n−3)            R. A. Fisher (1921), On the "probable error" of a
+	//	                               coefficient of correlation deduced from a small
+	//	                               sample, Metron 1, 3–32.
+	//	spearman:  √((1 + r²/2)/(n−3))  D. G. Bonett and T. A. Wright (2000), Sample size
+	//	                               requirements for estimating Pearson, Kendall and
+	//	                               Spearman correlations, Psychometrika 65(1), 23–28.
+	//	kendall_b: √(0.437/(n−4))       E. C. Fieller, H. O. Hartley and E. S. Pearson
+	//	                               (1957), Tests for rank correlation coefficients I,
+	//	                               Biometrika 44(3/4), 470–481.
+	//
+	// The bounds are transformed back with tanh.
+	IntervalFisher
+	// TODO: bootstrap and BCa intervals ("bootstrap", "bca") need the seeded
+	// resampling streams of the engine; the words are reserved and rejected.
+)
+
+// String returns the recipe word for the method.
+func (m IntervalMethod) String() string {
+	if m == IntervalFisher {
+		return "fisher"
+	}
+	return fmt.Sprintf("IntervalMethod(%d)", int(m))
+}
+
+// Interval is the confidence interval a test reports.
+type Interval struct {
+	Level     float64        // default 0.95, in (0, 1)
+	Method    IntervalMethod // default IntervalFisher
+	DeclRange hcl.Range      // the interval block, or the test's header when defaulted
+}
+
+// Test is a set of measures computed over every pair of a pairing.
+type Test struct {
+	Name    string
+	Pairing *Pairing
+	Ties    *Ties // never nil: the built-in average-rank policy when the recipe names none
+
+	Measures     []stats.Measure   // default [stats.Spearman]
+	Alternative  stats.Alternative // default stats.TwoSided
+	PValue       PMethod           // default PAuto
+	Interval     *Interval         // never nil: level 0.95, Fisher-type, by default
+	Permutations int               // default 10000; recorded, not yet used
+	Adjust       string            // multiplicity adjustment; only "none" for now
+
+	DeclRange hcl.Range
+}
+
+// TableFormat is the file format of an output table. The zero value is
+// invalid.
+type TableFormat int
+
+const (
+	_        TableFormat = iota
+	Markdown             // a pipe table
+	CSV                  // comma-separated, one row per result record
+	JSON                 // an array of result records
+)
+
+// String returns the recipe word for the format.
+func (f TableFormat) String() string {
+	switch f {
+	case Markdown:
+		return "markdown"
+	case CSV:
+		return "csv"
+	case JSON:
+		return "json"
+	}
+	return fmt.Sprintf("TableFormat(%d)", int(f))
+}
+
+// Table is an output file holding the results of some tests.
+type Table struct {
+	Name          string
+	Tests         []*Test
+	Format        TableFormat // from the extension unless `format` says otherwise
+	Path          string      // resolved like Dataset.Path
+	PathAsWritten string
+	Digits        int // decimal places; default 3, 0..15
+	DeclRange     hcl.Range
+
+	pathRange hcl.Range // where the path was written
+}
