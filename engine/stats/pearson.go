@@ -33,7 +33,14 @@ func Pearson(x, y []float64) float64 {
 		syy += dy * dy
 		sxy += dx * dy
 	}
-	return clamp1(sxy / (math.Sqrt(sxx) * math.Sqrt(syy)))
+	// √(sxx·syy) is one correctly rounded operation, so identical columns
+	// give exactly 1 (√sxx·√syy can give 1 − 2⁻⁵²); the product of roots is
+	// the fallback only when sxx·syy would overflow or underflow.
+	den := math.Sqrt(sxx * syy)
+	if math.IsInf(den, 0) || den == 0 {
+		den = math.Sqrt(sxx) * math.Sqrt(syy)
+	}
+	return clamp1(sxy / den)
 }
 
 // SpearmanRho returns Spearman's rank correlation ρ of x and y: Pearson's r

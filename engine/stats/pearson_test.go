@@ -131,8 +131,11 @@ func TestPearsonUndefined(t *testing.T) {
 	mustPanic(t, "length mismatch", func() { Pearson([]float64{1, 2}, []float64{1}) })
 }
 
-// TestPearsonExtremes: a perfect linear relation gives exactly ±1 (by
-// definition; the refined means make the centred sums exact here), and a
+// TestPearsonExtremes: a perfect linear relation gives ±1 to within the
+// rounding of the centred sums (by definition r = ±1; 0.1-step data are not
+// exact in binary, so a couple of ulps are allowed), identical or reversed
+// integer ranks give exactly ±1 (so a perfectly monotone sample prints 1,
+// not 0.9999999999999998), and a
 // large offset does not disturb r (the same data shifted by 1e9 must give
 // the same r to rounding).
 func TestPearsonExtremes(t *testing.T) {
@@ -143,8 +146,20 @@ func TestPearsonExtremes(t *testing.T) {
 		y[i] = 3 - 2*v
 		shifted[i] = v + 1e9
 	}
-	if got := Pearson(x, y); got != -1 {
-		t.Errorf("Pearson(x, 3 − 2x) = %.17g, want −1", got)
+	if got := Pearson(x, y); math.Abs(got+1) > 4e-16 {
+		t.Errorf("Pearson(x, 3 − 2x) = %.17g, want −1 within 2 ulps", got)
+	}
+	for n := 3; n <= 200; n++ {
+		up, down := make([]float64, n), make([]float64, n)
+		for i := range up {
+			up[i], down[i] = float64(i+1), float64(n-i)
+		}
+		if got := Pearson(up, up); got != 1 {
+			t.Errorf("n = %d: Pearson(ranks, ranks) = %.17g, want exactly 1", n, got)
+		}
+		if got := Pearson(up, down); got != -1 {
+			t.Errorf("n = %d: Pearson(ranks, reversed) = %.17g, want exactly −1", n, got)
+		}
 	}
 	noisy := []float64{1, 3, 2, 5, 4, 7, 6}
 	a, b := Pearson(x, noisy), Pearson(shifted, noisy)
