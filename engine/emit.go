@@ -1,0 +1,225 @@
+package engine
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"fmt"
+	"math"
+	"strconv"
+	"time"
+
+	"concordat/engine/ledger"
+	"concordat/io/render"
+	"concordat/recipe"
+)
+
+type renderedTable struct {
+	table *recipe.Table
+	data  []byte
+}
+
+// fullTable lays results out as the result record: one column per contract
+// key, in contract order.
+func fullTable(title string, rows []Result) *render.Table {
+	t := &render.Table{Title: title, Columns: recordColumns}
+	for _, r := range rows {
+		t.Rows = append(t.Rows, []render.Cell{
+			render.Text(r.Test), render.Text(r.X), render.Text(r.Y), render.Text(r.Group),
+			render.Text(r.Measure), render.Int(int64(r.N)), render.Int(int64(r.NDropped)),
+			render.Real(r.Estimate), render.Text(r.Alternative), render.Prob(r.PValue),
+			render.Text(r.PMethod), render.Real(r.CILow), render.Real(r.CIHigh),
+			render.Real(r.CILevel), render.Text(r.CIMethod), render.Prob(r.PAdjusted),
+			render.Text(r.AdjustMethod), render.Real(r.TiesX), render.Real(r.TiesY),
+			render.List(r.Warnings),
+		})
+	}
+	return t
+}
+
+// readableTable is the Markdown shape: the columns a reader of a paper
+// needs, with warnings numbered in notes under the table.
+func readableTable(title string, rows []Result) *render.Table {
+	t := &render.Table{Title: title, Columns: []string{"test", "x", "y", "group", "measure", "n", "estimate", "ci", "p", "p method", "notes"}}
+	noteIndex := map[string]int{}
+	for _, r := range rows {
+		var refs []string
+		for _, w := range r.Warnings {
+			k, ok := noteIndex[w]
+			if !ok {
+				t.Notes = append(t.Notes, w)
+				k = len(t.Notes)
+				noteIndex[w] = k
+			}
+			refs = append(refs, strconv.Itoa(k))
+		}
+		t.Rows = append(t.Rows, []render.Cell{
+			render.Text(r.Test), render.Text(r.X), render.Text(r.Y), render.Text(r.Group),
+			render.Text(r.Measure), render.Int(int64(r.N)), render.Real(r.Estimate),
+			render.Text(""), // the interval, set by renderTable with the table's digits
+			render.Prob(r.PValue), render.Text(r.PMethod), render.List(refs),
+		})
+	}
+	for i := range t.Notes {
+		t.Notes[i] = fmt.Sprintf("[%d] %s", i+1, t.Notes[i])
+	}
+	return t
+}
+
+// ciText formats an interval as "[lo, hi]" with digits decimals.
+func ciText(lo, hi float64, digits int) string {
+	if math.IsNaN(lo) || math.IsNaN(hi) {
+		return "—"
+	}
+	f := func(v float64) string {
+		s := strconv.FormatFloat(v, 'f', digits, 64)
+		if v == 0 || s == "-"+strconv.FormatFloat(0, 'f', digits, 64) {
+			s = strconv.FormatFloat(0, 'f', digits, 64)
+		}
+		return s
+	}
+	return "[" + f(lo) + ", " + f(hi) + "]"
+}
+
+func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, error) {
+	var buf bytes.Buffer
+	var err error
+	switch tb.Format {
+	case recipe.Markdown:
+		t := readableTable(plan.Title, rows)
+		ciCol := 7
+		t.Columns[ciCol] = fmt.Sprintf("%g%% CI", 100*firstLevel(rows))
+		for i, r := range rows {
+			t.Rows[i][ciCol] = render.Text(ciText(r.CILow, r.CIHigh, tb.Digits))
+		}
+		err = render.Encode(&buf, t, render.Markdown, tb.Digits)
+	case recipe.CSV:
+		// CSV and JSON are the machine-readable result record: they keep
+		// every digit (shortest round-trip) so no number is lost to
+		// rounding; `digits` shapes the human-facing Markdown table.
+		err = render.Encode(&buf, fullTable(plan.Title, rows), render.CSV, -1)
+	case recipe.JSON:
+		err = render.Encode(&buf, fullTable(plan.Title, rows), render.JSON, -1)
+	default:
+		panic(fmt.Sprintf("engine: table format %v has no renderer", tb.Format))
+	}
+	if err != nil {
+		return nil, fmt.Errorf("render table %q: %w", tb.Name, err)
+	}
+	return buf.Bytes(), nil
+}
+
+func firstLevel(rows []Result) float64 {
+	if len(rows) == 0 {
+		return 95
+	}
+	return rows[0].CILevel
+}
+
+// stepRecord hashes what one test read and what it produced. The input hash
+// covers the test's resolved settings and the hashes of the data it read;
+// the result hash is the sha256 of the test's results in the JSON table
+// encoding, which is canonical (fixed key order, shortest round-trip numbers).
+func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, results []Result) (ledger.Step, error) {
+	var data []ledger.Input
+	for _, in := range inputs {
+		if in.Name == t.Pairing.Dataset.Name {
+			data = append(data, in)
+		}
+	}
+	inHash, err := ledger.Hash(struct {
+		Test     any            `json:"test"`
+		Datasets []ledger.Input `json:"datasets"`
+	}{testSettings(t), data})
+	if err != nil {
+		return ledger.Step{}, fmt.Errorf("hash inputs of test %q: %w", t.Name, err)
+	}
+	var buf bytes.Buffer
+	if err := render.Encode(&buf, fullTable("", results), render.JSON, -1); err != nil {
+		return ledger.Step{}, err
+	}
+	sum := sha256.Sum256(buf.Bytes())
+	return ledger.Step{Test: t.Name, InputSHA256: inHash, ResultSHA256: hex.EncodeToString(sum[:]), Results: len(results)}, nil
+}
+
+// commit writes the tables and appends the ledger record, or nothing.
+func (c *Computation) commit(plan *recipe.Plan, opts Options, started time.Time) (*Report, error) {
+	ledgerPath := plan.LedgerPath()
+	// Refuse early, before any output moves, if the ledger is damaged.
+	if _, err := ledger.Read(ledgerPath); err != nil {
+		return nil, fmt.Errorf("ledger: %w", err)
+	}
+	settings, err := json.Marshal(plan.Settings())
+	if err != nil {
+		return nil, fmt.Errorf("encode settings: %w", err)
+	}
+	var batch render.Batch
+	defer batch.Abort()
+	var outputs []ledger.Output
+	for _, rt := range c.tables {
+		if err := batch.Add(rt.table.Path, rt.data); err != nil {
+			return nil, fmt.Errorf("write table %q: %w", rt.table.Name, err)
+		}
+		sum := sha256.Sum256(rt.data)
+		outputs = append(outputs, ledger.Output{
+			Table: rt.table.Name, Path: relPath(plan.Dir, rt.table.Path),
+			Format: rt.table.Format.String(), SHA256: hex.EncodeToString(sum[:]), Bytes: int64(len(rt.data)),
+		})
+	}
+	recipeSum := sha256.Sum256(plan.Source)
+	rec := ledger.Record{
+		Format:   ledger.FormatV1,
+		Recipe:   ledger.File{Path: relPath(plan.Dir, plan.Path), SHA256: hex.EncodeToString(recipeSum[:]), Bytes: int64(len(plan.Source))},
+		Title:    plan.Title,
+		Tool:     ledger.CurrentTool(version(opts)),
+		Seed:     plan.Seed,
+		Settings: settings,
+		Inputs:   c.inputs,
+		Steps:    c.steps,
+		Outputs:  outputs,
+		Started:  started.UTC().Format(time.RFC3339Nano),
+		Finished: opts.now().UTC().Format(time.RFC3339Nano),
+	}
+	if err := batch.Commit(); err != nil {
+		return nil, fmt.Errorf("move tables into place: %w", err)
+	}
+	stored, err := ledger.Append(ledgerPath, rec)
+	if err != nil {
+		return nil, fmt.Errorf("append ledger: %w", err)
+	}
+	return &Report{Results: c.Results, Record: stored, Ledger: ledgerPath, Outputs: outputs}, nil
+}
+
+func version(o Options) string {
+	if o.Version == "" {
+		return "devel"
+	}
+	return o.Version
+}
+
+// testSettings is the resolved description of a test that its step hash
+// covers: everything that can change its numbers.
+func testSettings(t *recipe.Test) any {
+	p := t.Pairing
+	measures := make([]string, len(t.Measures))
+	for i, m := range t.Measures {
+		measures[i] = m.String()
+	}
+	return struct {
+		Name        string        `json:"name"`
+		Dataset     string        `json:"dataset"`
+		Pairs       []recipe.Pair `json:"pairs"`
+		Missing     string        `json:"missing"`
+		By          string        `json:"by"`
+		TieRule     string        `json:"tie_rule"`
+		MaxShare    float64       `json:"max_share"`
+		Measures    []string      `json:"measures"`
+		Alternative string        `json:"alternative"`
+		PValue      string        `json:"p_value"`
+		Level       float64       `json:"interval_level"`
+		Interval    string        `json:"interval_method"`
+		Adjust      string        `json:"adjust"`
+	}{t.Name, p.Dataset.Name, p.Pairs, p.Missing.String(), p.By, t.Ties.Rule.String(), t.Ties.MaxShare,
+		measures, t.Alternative.String(), t.PValue.String(), t.Interval.Level, t.Interval.Method.String(), t.Adjust}
+}

@@ -1,0 +1,293 @@
+package engine
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strings"
+	"time"
+
+	"github.com/hashicorp/hcl/v2"
+	"golang.org/x/sync/errgroup"
+
+	"concordat/engine/ledger"
+	"concordat/io/dataset"
+	"concordat/recipe"
+)
+
+// Options tunes a run. The zero value is ready to use: as many workers as
+// GOMAXPROCS, tool version "devel", the wall clock.
+type Options struct {
+	Jobs    int              // workers for the (test, pair, group) cells; ≤ 0 means GOMAXPROCS
+	Version string           // tool version written to the ledger; "" means "devel"
+	Now     func() time.Time // clock for the ledger's recorded (never hashed) times
+}
+
+func (o Options) jobs() int {
+	if o.Jobs > 0 {
+		return o.Jobs
+	}
+	return runtime.GOMAXPROCS(0)
+}
+
+func (o Options) now() time.Time {
+	if o.Now != nil {
+		return o.Now()
+	}
+	return time.Now()
+}
+
+// Report is what a completed run produced.
+type Report struct {
+	Results []Result        // every result, in recipe order
+	Record  ledger.Record   // the ledger record appended
+	Ledger  string          // path of the ledger file
+	Outputs []ledger.Output // tables written
+}
+
+// Run computes plan, writes its tables and appends one ledger record. On
+// any error nothing is written. Recipe problems found against the data (an
+// unknown column, a pin that does not match, a label outside `levels`) come
+// back as a *DiagnosticsError pointing at the recipe.
+func Run(ctx context.Context, plan *recipe.Plan, opts Options) (*Report, error) {
+	started := opts.now()
+	comp, err := Compute(ctx, plan, opts)
+	if err != nil {
+		return nil, err
+	}
+	return comp.commit(plan, opts, started)
+}
+
+// Computation holds everything a run computed before anything is written.
+type Computation struct {
+	Results []Result
+	inputs  []ledger.Input
+	steps   []ledger.Step
+	tables  []renderedTable
+}
+
+// Compute loads the data and computes every result of plan, writing nothing.
+func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation, error) {
+	if diags := Check(plan); diags.HasErrors() {
+		return nil, &DiagnosticsError{Diags: diags}
+	}
+	tables, inputs, err := loadDatasets(ctx, plan)
+	if err != nil {
+		return nil, err
+	}
+
+	// Lay out the cells of work in recipe order, then fill them concurrently.
+	type cell struct {
+		test  *recipe.Test
+		pair  recipe.Pair
+		group string
+		out   []Result
+	}
+	var cells []*cell
+	samples := map[*cell]func() sample{}
+	for _, t := range plan.Tests {
+		tbl := tables[t.Pairing.Dataset.Name]
+		groups := groupRows(tbl, t.Pairing)
+		for _, pair := range t.Pairing.Pairs {
+			for _, g := range groups {
+				c := &cell{test: t, pair: pair, group: g.name}
+				cells = append(cells, c)
+				p, rows := t.Pairing, g.rows
+				samples[c] = func() sample { return pairUp(tbl, p, pair, rows) }
+			}
+		}
+	}
+
+	eg, ectx := errgroup.WithContext(ctx)
+	eg.SetLimit(opts.jobs())
+	for _, c := range cells {
+		mk := samples[c]
+		eg.Go(func() error {
+			if err := ectx.Err(); err != nil {
+				return err
+			}
+			c.out = measureSample(c.test, c.pair, c.group, mk())
+			return nil
+		})
+	}
+	if err := eg.Wait(); err != nil {
+		return nil, err
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+
+	comp := &Computation{inputs: inputs}
+	byTest := map[string][]Result{}
+	for _, c := range cells {
+		comp.Results = append(comp.Results, c.out...)
+		byTest[c.test.Name] = append(byTest[c.test.Name], c.out...)
+	}
+	for _, t := range plan.Tests {
+		step, err := stepRecord(plan, t, inputs, byTest[t.Name])
+		if err != nil {
+			return nil, err
+		}
+		comp.steps = append(comp.steps, step)
+	}
+	for _, tb := range plan.Tables {
+		var rows []Result
+		for _, t := range tb.Tests {
+			rows = append(rows, byTest[t.Name]...)
+		}
+		data, err := renderTable(plan, tb, rows)
+		if err != nil {
+			return nil, err
+		}
+		comp.tables = append(comp.tables, renderedTable{table: tb, data: data})
+	}
+	return comp, nil
+}
+
+// group is the rows of one analysis group, in file order.
+type group struct {
+	name string
+	rows []int // nil means every row
+}
+
+// groupRows returns "all" followed by one group per distinct label of the
+// pairing's `by` column, in sorted order. Rows whose label is missing belong
+// only to "all".
+func groupRows(t *dataset.Table, p *recipe.Pairing) []group {
+	out := []group{{name: "all"}}
+	if p.By == "" {
+		return out
+	}
+	col := column(t, p.By)
+	idx := map[string][]int{}
+	for i, l := range col.Labels {
+		if col.Missing != nil && col.Missing[i] {
+			continue
+		}
+		idx[l] = append(idx[l], i)
+	}
+	names := make([]string, 0, len(idx))
+	for k := range idx {
+		names = append(names, k)
+	}
+	slices.Sort(names)
+	for _, k := range names {
+		out = append(out, group{name: k, rows: idx[k]})
+	}
+	return out
+}
+
+// pairUp returns the complete (x, y) observations of one group under the
+// pairing's missing rule, and what was dropped.
+func pairUp(t *dataset.Table, p *recipe.Pairing, pair recipe.Pair, rows []int) sample {
+	xs, ys := column(t, pair.X).Values, column(t, pair.Y).Values
+	var others [][]float64
+	if p.Missing == recipe.Listwise {
+		for _, name := range pairingColumns(p) {
+			if name != pair.X && name != pair.Y {
+				others = append(others, column(t, name).Values)
+			}
+		}
+	}
+	total := t.Rows
+	if rows != nil {
+		total = len(rows)
+	}
+	s := sample{x: make([]float64, 0, total), y: make([]float64, 0, total)}
+	var missX, missY, missBoth, missOther int
+	for k := 0; k < total; k++ {
+		i := k
+		if rows != nil {
+			i = rows[k]
+		}
+		x, y := xs[i], ys[i]
+		mx, my := math.IsNaN(x), math.IsNaN(y)
+		switch {
+		case mx && my:
+			missBoth++
+			continue
+		case mx:
+			missX++
+			continue
+		case my:
+			missY++
+			continue
+		}
+		other := false
+		for _, o := range others {
+			if math.IsNaN(o[i]) {
+				other = true
+				break
+			}
+		}
+		if other {
+			missOther++
+			continue
+		}
+		s.x = append(s.x, x)
+		s.y = append(s.y, y)
+	}
+	s.dropped = total - len(s.x)
+	if s.dropped > 0 {
+		var why []string
+		if missX > 0 {
+			why = append(why, fmt.Sprintf("%d missing %s", missX, pair.X))
+		}
+		if missY > 0 {
+			why = append(why, fmt.Sprintf("%d missing %s", missY, pair.Y))
+		}
+		if missBoth > 0 {
+			why = append(why, fmt.Sprintf("%d missing both", missBoth))
+		}
+		if missOther > 0 {
+			why = append(why, fmt.Sprintf("%d missing another column of the pairing (listwise)", missOther))
+		}
+		s.dropNote = fmt.Sprintf("%d of %d rows dropped: %s", s.dropped, total, strings.Join(why, ", "))
+	}
+	return s
+}
+
+// pairingColumns lists the variables of a pairing (not its `by` column).
+func pairingColumns(p *recipe.Pairing) []string {
+	var out []string
+	seen := map[string]bool{}
+	for _, list := range [][]string{p.X, p.Y, p.Columns} {
+		for _, c := range list {
+			if !seen[c] {
+				seen[c] = true
+				out = append(out, c)
+			}
+		}
+	}
+	return out
+}
+
+func column(t *dataset.Table, name string) *dataset.Column {
+	for i := range t.Columns {
+		if t.Columns[i].Name == name {
+			return &t.Columns[i]
+		}
+	}
+	panic(fmt.Sprintf("engine: column %q was not loaded", name))
+}
+
+// relPath writes path relative to the recipe's folder with forward slashes,
+// so that ledgers compare equal across machines.
+func relPath(dir, path string) string {
+	if r, err := filepath.Rel(dir, path); err == nil {
+		return filepath.ToSlash(r)
+	}
+	return filepath.ToSlash(path)
+}
+
+// DiagnosticsError is a failed run whose causes point at the recipe text.
+// Data reports whether the data (not the recipe alone) was at fault.
+type DiagnosticsError struct {
+	Diags hcl.Diagnostics
+	Data  bool
+}
+
+func (e *DiagnosticsError) Error() string { return e.Diags.Error() }
