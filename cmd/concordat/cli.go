@@ -1,0 +1,244 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"runtime/debug"
+
+	"github.com/hashicorp/hcl/v2"
+	"github.com/spf13/pflag"
+	"golang.org/x/term"
+
+	"concordat/engine"
+	"concordat/recipe"
+)
+
+// Exit codes (DESIGN.md).
+const (
+	exitOK     = 0
+	exitFailed = 1 // a run failed: data error, I/O
+	exitUsage  = 2 // usage or recipe error
+)
+
+// version is the tool version written to ledgers. Release builds set it with
+// -ldflags "-X main.version=…"; otherwise the module version from the build
+// info is used, or "devel".
+var version = ""
+
+const usage = `usage: concordat <command> [flags] [arguments]
+
+commands:
+  run RECIPE...      compute the recipe's tests, write its tables, append to its ledger
+  check RECIPE...    validate recipes against their data headers and print the plan; compute nothing
+  version            print the version
+
+Run "concordat <command> --help" for the flags of a command.
+`
+
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		fmt.Fprint(stderr, usage)
+		return exitUsage
+	}
+	cmd, rest := args[0], args[1:]
+	switch cmd {
+	case "run":
+		return cmdRun(rest, stdout, stderr)
+	case "check":
+		return cmdCheck(rest, stdout, stderr)
+	case "version", "--version":
+		fmt.Fprintf(stdout, "concordat %s\n", toolVersion())
+		return exitOK
+	case "help", "-h", "--help":
+		fmt.Fprint(stdout, usage)
+		return exitOK
+	}
+	fmt.Fprintf(stderr, "concordat: error: unknown command %q\n%s", cmd, usage)
+	return exitUsage
+}
+
+func toolVersion() string {
+	if version != "" {
+		return version
+	}
+	if bi, ok := debug.ReadBuildInfo(); ok && bi.Main.Version != "" && bi.Main.Version != "(devel)" {
+		return bi.Main.Version
+	}
+	return "devel"
+}
+
+func newFlags(name string, stderr io.Writer, summary string) *pflag.FlagSet {
+	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
+	fs.SetOutput(stderr)
+	fs.Usage = func() {
+		fmt.Fprintf(stderr, "usage: concordat %s [flags] RECIPE...\n\n%s\n\nflags:\n", name, summary)
+		fs.PrintDefaults()
+	}
+	return fs
+}
+
+// parseFlags parses and returns the exit code to stop with, or -1 to go on.
+func parseFlags(fs *pflag.FlagSet, args []string, stderr io.Writer) int {
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, pflag.ErrHelp) {
+			return exitOK
+		}
+		fmt.Fprintf(stderr, "concordat: error: %v\n", err)
+		fs.Usage()
+		return exitUsage
+	}
+	if fs.NArg() == 0 {
+		fmt.Fprintf(stderr, "concordat: error: %s needs at least one recipe file\n", fs.Name())
+		fs.Usage()
+		return exitUsage
+	}
+	return -1
+}
+
+func cmdRun(args []string, stdout, stderr io.Writer) int {
+	fs := newFlags("run", stderr, "Compute every test of each recipe, write its tables and append one record to\nthe recipe's ledger (<recipe>.ledger.jsonl beside it). A failed run writes nothing.")
+	jobs := fs.IntP("jobs", "j", 0, "worker count (default: the number of CPUs); results do not depend on it")
+	if code := parseFlags(fs, args, stderr); code >= 0 {
+		return code
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+
+	code := exitOK
+	for _, path := range fs.Args() {
+		plan, files, diags := recipe.LoadFiles(path)
+		printDiags(stderr, path, files, diags) // errors, or warnings only
+		if diags.HasErrors() {
+			fmt.Fprintf(stderr, "concordat: error: %s: %s in the recipe; nothing was computed\n", path, plural(errorCount(diags), "problem"))
+			code = max(code, exitUsage)
+			continue
+		}
+		rep, err := engine.Run(ctx, plan, engine.Options{Jobs: *jobs, Version: toolVersion()})
+		if err != nil {
+			code = max(code, reportError(stderr, path, plan, err))
+			continue
+		}
+		summarise(stdout, path, plan, rep)
+	}
+	return code
+}
+
+func cmdCheck(args []string, stdout, stderr io.Writer) int {
+	fs := newFlags("check", stderr, "Validate each recipe and the headers of its data files, and print the resolved\nplan with every default made explicit. Nothing is computed or written.")
+	if code := parseFlags(fs, args, stderr); code >= 0 {
+		return code
+	}
+	code := exitOK
+	for _, path := range fs.Args() {
+		plan, files, diags := recipe.LoadFiles(path)
+		if !diags.HasErrors() {
+			diags = append(diags, engine.Check(plan)...)
+		}
+		printDiags(stderr, path, files, diags)
+		if diags.HasErrors() {
+			fmt.Fprintf(stderr, "concordat: error: %s: %s\n", path, plural(errorCount(diags), "problem"))
+			code = max(code, exitUsage)
+			continue
+		}
+		if err := plan.Describe(stdout); err != nil {
+			fmt.Fprintf(stderr, "concordat: error: %v\n", err)
+			code = max(code, exitFailed)
+		}
+	}
+	return code
+}
+
+// reportError prints a failed run and returns its exit code.
+func reportError(stderr io.Writer, path string, plan *recipe.Plan, err error) int {
+	var de *engine.DiagnosticsError
+	if errors.As(err, &de) {
+		printDiags(stderr, path, plan.Files, de.Diags)
+		if !de.Data {
+			fmt.Fprintf(stderr, "concordat: error: %s: %s where the recipe meets its data; nothing was computed\n", path, plural(errorCount(de.Diags), "problem"))
+			return exitUsage
+		}
+		fmt.Fprintf(stderr, "concordat: error: %s: run failed; nothing was written\n", path)
+		return exitFailed
+	}
+	if errors.Is(err, context.Canceled) {
+		fmt.Fprintf(stderr, "concordat: error: %s: interrupted; nothing was written\n", path)
+		return exitFailed
+	}
+	fmt.Fprintf(stderr, "concordat: error: %s: %v; nothing was written\n", path, err)
+	return exitFailed
+}
+
+// errorCount counts the errors among diags.
+func errorCount(diags hcl.Diagnostics) int {
+	n := 0
+	for _, d := range diags {
+		if d.Severity == hcl.DiagError {
+			n++
+		}
+	}
+	return n
+}
+
+// printDiags prints diagnostics with the recipe text they point at.
+func printDiags(w io.Writer, path string, files map[string]*hcl.File, diags hcl.Diagnostics) {
+	if len(diags) == 0 {
+		return
+	}
+	width := uint(0)
+	if f, ok := w.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
+		if cols, _, err := term.GetSize(int(f.Fd())); err == nil {
+			width = uint(cols)
+		}
+	}
+	// Each diagnostic opens with its position as file:line:col, the form
+	// editors and terminals link to; HCL's writer then shows the source
+	// line, the detail and the suggestion.
+	for _, d := range diags {
+		var buf bytes.Buffer
+		dw := hcl.NewDiagnosticTextWriter(&buf, files, width, false)
+		dw.WriteDiagnostic(d)
+		if d.Subject != nil {
+			fmt.Fprintf(w, "%s:%d:%d: ", d.Subject.Filename, d.Subject.Start.Line, d.Subject.Start.Column)
+		}
+		w.Write(buf.Bytes())
+	}
+}
+
+func plural(n int, word string) string {
+	if n == 1 {
+		return "1 " + word
+	}
+	return fmt.Sprintf("%d %ss", n, word)
+}
+
+// summarise prints one line per run and one per table written.
+func summarise(w io.Writer, path string, plan *recipe.Plan, rep *engine.Report) {
+	warned := 0
+	for _, r := range rep.Results {
+		if len(r.Warnings) > 0 {
+			warned++
+		}
+	}
+	fmt.Fprintf(w, "%s: %s", path, plural(len(rep.Results), "result"))
+	if warned > 0 {
+		fmt.Fprintf(w, " (%d with warnings; see the tables)", warned)
+	}
+	fmt.Fprintf(w, ", run %s\n", short(rep.Record.RunSHA256))
+	for _, o := range rep.Outputs {
+		fmt.Fprintf(w, "  wrote %s\n", filepath.Join(plan.Dir, filepath.FromSlash(o.Path)))
+	}
+	fmt.Fprintf(w, "  ledger %s\n", rep.Ledger)
+}
+
+func short(h string) string {
+	if len(h) > 12 {
+		return h[:12]
+	}
+	return h
+}

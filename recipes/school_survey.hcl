@@ -1,0 +1,40 @@
+# School wellbeing survey (invented data): how do sleep, screen time, homework
+# and two Likert items rank against one another?
+#   go run ./cmd/concordat run recipes/school_survey.hcl
+
+title = "Sleep, screens and study: pupil survey (invented demo data)"
+
+dataset "survey" {
+  path    = "../testdata/demo/school_survey.csv"
+  missing = ["", "NA"]
+
+  column "enjoys_reading" {
+    levels = ["strongly disagree", "disagree", "neutral", "agree", "strongly agree"]
+  }
+  column "feels_rested" {
+    levels = ["strongly disagree", "disagree", "neutral", "agree", "strongly agree"]
+  }
+}
+
+# Every pair among these columns: a correlation matrix in long form.
+pairing "wellbeing" {
+  dataset = "survey"
+  columns = ["sleep_hours", "screen_time_min", "homework_hours", "enjoys_reading", "feels_rested"]
+  missing = "listwise"
+}
+
+# Likert items carry many ties: Kendall's tau-b is reported beside rho.
+test "wellbeing_matrix" {
+  pairing  = "wellbeing"
+  measures = ["spearman", "kendall_b"]
+}
+
+table "matrix_long" {
+  tests = ["wellbeing_matrix"]
+  path  = "out/school_wellbeing.csv"
+}
+
+table "matrix_readable" {
+  tests = ["wellbeing_matrix"]
+  path  = "out/school_wellbeing.md"
+}
