@@ -415,3 +415,39 @@ table "o" {
 		}
 	}
 }
+
+// TestRowsWithoutGroupCountInAllOnly: a row whose `by` label is missing is
+// analysed in "all" but in no group, and the "all" results say so.
+func TestRowsWithoutGroupCountInAllOnly(t *testing.T) {
+	p := plan(t, `
+dataset "d" { path = "d.csv" }
+pairing "p" {
+  dataset = "d"
+  x  = ["x"]
+  y  = ["y"]
+  by = "site"
+}
+test "t" { pairing = "p" }
+table "o" {
+  tests = ["t"]
+  path  = "o.csv"
+}
+`, map[string]string{"d.csv": "site,x,y\nA,1,2\nA,2,1\nA,3,3\nB,1,1\nB,2,3\nB,3,2\nNA,4,4\n"})
+	comp, err := Compute(context.Background(), p, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]int{"all": 7, "A": 3, "B": 3}
+	if len(comp.Results) != len(want) {
+		t.Fatalf("got %d results, want %d", len(comp.Results), len(want))
+	}
+	for _, r := range comp.Results {
+		if r.N != want[r.Group] {
+			t.Errorf("group %s: n = %d, want %d", r.Group, r.N, want[r.Group])
+		}
+		noted := strings.Contains(strings.Join(r.Warnings, " "), `1 row has no site value`)
+		if noted != (r.Group == "all") {
+			t.Errorf("group %s: warnings %q", r.Group, r.Warnings)
+		}
+	}
+}

@@ -11,9 +11,10 @@ import (
 // sample is one (test, pair, group) cell of work: the paired, complete
 // observations and how many rows of the group were dropped and why.
 type sample struct {
-	x, y     []float64
-	dropped  int
-	dropNote string // why rows were dropped, "" when none were
+	x, y      []float64
+	dropped   int
+	dropNote  string // why rows were dropped, "" when none were
+	groupNote string // about the group itself (rows without a group label), or ""
 }
 
 // minPairs is the smallest n for which any correlation here is defined: with
@@ -33,6 +34,9 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 	}
 	common := func() []string {
 		var w []string
+		if s.groupNote != "" {
+			w = append(w, s.groupNote)
+		}
 		if s.dropNote != "" {
 			w = append(w, s.dropNote)
 		}

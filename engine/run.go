@@ -95,8 +95,12 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 			for _, g := range groups {
 				c := &cell{test: t, pair: pair, group: g.name}
 				cells = append(cells, c)
-				p, rows := t.Pairing, g.rows
-				samples[c] = func() sample { return pairUp(tbl, p, pair, rows) }
+				p, g := t.Pairing, g
+				samples[c] = func() sample {
+					s := pairUp(tbl, p, pair, g.rows)
+					s.groupNote = g.note
+					return s
+				}
 			}
 		}
 	}
@@ -150,7 +154,8 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 // group is the rows of one analysis group, in file order.
 type group struct {
 	name string
-	rows []int // nil means every row
+	rows []int  // nil means every row
+	note string // said in every result of the group, "" for none
 }
 
 // groupRows returns "all" followed by one group per distinct label of the
@@ -163,11 +168,16 @@ func groupRows(t *dataset.Table, p *recipe.Pairing) []group {
 	}
 	col := column(t, p.By)
 	idx := map[string][]int{}
+	unlabelled := 0
 	for i, l := range col.Labels {
 		if col.Missing != nil && col.Missing[i] {
+			unlabelled++
 			continue
 		}
 		idx[l] = append(idx[l], i)
+	}
+	if unlabelled > 0 {
+		out[0].note = fmt.Sprintf("%s no %s value: counted in \"all\" only", plural(unlabelled, "row has", "rows have"), p.By)
 	}
 	names := make([]string, 0, len(idx))
 	for k := range idx {
@@ -291,3 +301,11 @@ type DiagnosticsError struct {
 }
 
 func (e *DiagnosticsError) Error() string { return e.Diags.Error() }
+
+// plural picks the singular or plural phrase for n and prefixes n.
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
+}
