@@ -88,10 +88,19 @@ func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, er
 	switch tb.Format {
 	case recipe.Markdown:
 		t := readableTable(plan.Title, rows)
-		ciCol := 7
-		t.Columns[ciCol] = fmt.Sprintf("%g%% CI", 100*firstLevel(rows))
+		const ciCol = 7
+		level, same := commonLevel(rows)
+		if same {
+			t.Columns[ciCol] = fmt.Sprintf("%g%% CI", 100*level)
+		} else {
+			t.Columns[ciCol] = "CI (level)"
+		}
 		for i, r := range rows {
-			t.Rows[i][ciCol] = render.Text(ciText(r.CILow, r.CIHigh, tb.Digits))
+			text := ciText(r.CILow, r.CIHigh, tb.Digits)
+			if !same {
+				text += fmt.Sprintf(" (%g%%)", 100*r.CILevel)
+			}
+			t.Rows[i][ciCol] = render.Text(text)
 		}
 		err = render.Encode(&buf, t, render.Markdown, tb.Digits)
 	case recipe.CSV:
@@ -110,11 +119,18 @@ func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, er
 	return buf.Bytes(), nil
 }
 
-func firstLevel(rows []Result) float64 {
+// commonLevel returns the interval level shared by every row, and whether
+// there is one (tests of one table may declare different levels).
+func commonLevel(rows []Result) (float64, bool) {
 	if len(rows) == 0 {
-		return 95
+		return 0.95, true
 	}
-	return rows[0].CILevel
+	for _, r := range rows[1:] {
+		if r.CILevel != rows[0].CILevel {
+			return 0, false
+		}
+	}
+	return rows[0].CILevel, true
 }
 
 // stepRecord hashes what one test read and what it produced. The input hash

@@ -451,3 +451,40 @@ table "o" {
 		}
 	}
 }
+
+// TestMarkdownStatesEachLevelWhenTheyDiffer: one table over tests with 95%
+// and 90% intervals must not label every interval "95% CI".
+func TestMarkdownStatesEachLevelWhenTheyDiffer(t *testing.T) {
+	p := plan(t, `
+dataset "d" { path = "d.csv" }
+pairing "p" {
+  dataset = "d"
+  x = ["x"]
+  y = ["y"]
+}
+test "wide" { pairing = "p" }
+test "narrow" {
+  pairing = "p"
+  interval {
+    level = 0.9
+  }
+}
+table "o" {
+  tests = ["wide", "narrow"]
+  path  = "o.md"
+}
+`, map[string]string{"d.csv": "x,y\n1,2\n2,1\n3,4\n4,3\n5,6\n6,5\n"})
+	comp, err := Compute(context.Background(), p, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	md := string(comp.tables[0].data)
+	for _, want := range []string{"CI (level)", "(95%)", "(90%)"} {
+		if !strings.Contains(md, want) {
+			t.Errorf("markdown lacks %q:\n%s", want, md)
+		}
+	}
+	if strings.Contains(md, "95% CI") {
+		t.Errorf("markdown claims one level for all rows:\n%s", md)
+	}
+}
