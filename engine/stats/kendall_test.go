@@ -95,9 +95,30 @@ func TestCountPairsLong(t *testing.T) {
 	}
 }
 
-// TestKendallHandExample checks a sample small enough to classify by hand.
-// No textbook example is used: we do not recall one reliably enough to cite;
-// the oracle and R (TestAgainstR) carry the rest.
+// TestKendallHollanderWolfe checks the worked example of Hollander & Wolfe,
+// Nonparametric Statistical Methods (1973), p. 187f.: Hunter L lightness
+// against consumer panel scores for 9 lots of canned tuna. The book's
+// statistic is K = n_c − n_d = 16 with n_c = 26 (R prints T = 26), so
+// τ = 16/36 = 4/9 = 0.4444; there are no ties, so τ_b = τ_a. The data are as
+// reproduced in R 4.2.2's documentation of cor.test, whose example prints
+// T = 26 and tau 0.4444444 (rerun here with that R).
+func TestKendallHollanderWolfe(t *testing.T) {
+	x := []float64{44.4, 45.9, 41.9, 53.3, 44.7, 44.1, 50.7, 45.2, 60.1}
+	y := []float64{2.6, 3.1, 2.5, 5.0, 3.6, 4.0, 5.2, 2.8, 3.8}
+	c := CountPairs(x, y)
+	if c.Concordant != 26 || c.Discordant != 10 || c.TiedX != 0 || c.TiedY != 0 {
+		t.Errorf("counts = %+v, want 26 concordant and 10 discordant pairs, no ties", c)
+	}
+	if got := c.TauB(); math.Abs(got-4.0/9) > 1e-15 {
+		t.Errorf("tau-b = %.17g, want 4/9", got)
+	}
+	if got := c.TauA(); math.Abs(got-4.0/9) > 1e-15 {
+		t.Errorf("tau-a = %.17g, want 4/9", got)
+	}
+}
+
+// TestKendallHandExample checks a sample small enough to classify by hand,
+// with ties in x and in y; the oracle and R (TestAgainstR) carry the rest.
 func TestKendallHandExample(t *testing.T) {
 	// Hand-computed by listing all 6 pairs: (1,2), (1,3), (1,4), (3,4) are
 	// concordant; (2,3) is tied in x; (2,4) is tied in y. So n_c = 4,
