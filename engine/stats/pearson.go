@@ -14,6 +14,10 @@ import (
 // large offset such as the NIST StRD "Norris" set. The result is clamped to
 // [−1, 1].
 //
+// Columns whose magnitudes would overflow or underflow the sums of squares
+// (beyond 2^±500) are first scaled by a power of two, which is exact and
+// leaves r unchanged.
+//
 // It returns NaN when n < 2, when x or y is constant, or when a value is
 // ±Inf or NaN. It panics when x and y differ in length.
 //
@@ -25,6 +29,7 @@ func Pearson(x, y []float64) float64 {
 	if len(x) < 2 || isConstant(x) || isConstant(y) {
 		return math.NaN()
 	}
+	x, y = rescaled(x), rescaled(y)
 	mx, my := mean(x), mean(y)
 	var sxx, syy, sxy float64
 	for i := range x {
@@ -59,6 +64,26 @@ func SpearmanRho(x, y []float64, rule TieRule) float64 {
 
 // mean returns the arithmetic mean of x (len(x) > 0), corrected by the mean
 // of the residuals so that rounding in the first sum is recovered.
+// rescaled returns x itself when its largest magnitude lies in
+// [2⁻⁵⁰⁰, 2⁵⁰⁰], where squares and their sums cannot overflow or lose
+// precision to underflow; otherwise a copy scaled by a power of two so the
+// largest magnitude lies in [0.5, 1). Scaling by 2ᵏ is exact.
+func rescaled(x []float64) []float64 {
+	var m float64
+	for _, v := range x {
+		m = math.Max(m, math.Abs(v))
+	}
+	if m == 0 || math.IsInf(m, 0) || math.IsNaN(m) || (m >= 0x1p-500 && m <= 0x1p500) {
+		return x
+	}
+	_, exp := math.Frexp(m)
+	out := make([]float64, len(x))
+	for i, v := range x {
+		out[i] = math.Ldexp(v, -exp)
+	}
+	return out
+}
+
 func mean(x []float64) float64 {
 	var s float64
 	for _, v := range x {

@@ -178,3 +178,22 @@ func TestSpearmanNoTies(t *testing.T) {
 		t.Errorf("SpearmanRho = %.17g, want 0.8", got)
 	}
 }
+
+// TestPearsonExtremeMagnitudes: r is scale-free, so data near the ends of
+// the float64 range give the r of the same data at ordinary scale (by
+// definition of r; the scale factors are powers of ten, so the tolerance
+// allows for their rounding).
+func TestPearsonExtremeMagnitudes(t *testing.T) {
+	x := []float64{1, 2, 3, 4, 5, 6}
+	y := []float64{2, 1, 4, 3, 6, 5}
+	want := Pearson(x, y)
+	for _, sc := range [][2]float64{{1e160, 1e-161}, {1e160, 1e160}, {1e-161, 1e-161}, {1e300, 1}, {1e-300, 1e-300}} {
+		xs, ys := make([]float64, len(x)), make([]float64, len(y))
+		for i := range x {
+			xs[i], ys[i] = x[i]*sc[0], y[i]*sc[1]
+		}
+		if got := Pearson(xs, ys); math.Abs(got-want) > 1e-14 {
+			t.Errorf("scales %g, %g: r = %.17g, want %.17g", sc[0], sc[1], got, want)
+		}
+	}
+}
