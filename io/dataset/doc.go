@@ -6,12 +6,29 @@
 // reports any cell it cannot read as a [*CellError] that names the file, the
 // data row, the column and the value.
 //
+// Nor does it guess a file's format: the caller names it in [Spec.Format]
+// (the recipe package decides what a file's extension means, and
+// [ParseFormat] reads the recipe's word).
+//
+// # Hashes
+//
+// [Table.SHA256] is the hash of the bytes that were parsed. A CSV or TSV file
+// is hashed as it streams through the parser. A Parquet file is read out of
+// order, so it is hashed through the handle that parses it, before and after
+// parsing; if the two hashes differ, Read fails with an error saying that
+// the file changed while it was being read.
+//
 // # Column kinds
 //
 //   - [Numeric]: numbers, returned as float64.
 //   - [Ordinal]: text with a declared order. The label at position i
 //     (0-based) of [ColumnSpec.Levels], listed low to high, becomes i+1.
 //   - [Label]: text kept as text, for grouping columns.
+//
+// One column may be requested twice, as a Label and as a Numeric or Ordinal
+// column, when a recipe uses it both as a variable and for grouping; it is
+// then returned twice, once per kind, and [Table.Column] finds each by name
+// and kind.
 //
 // # Value rules (CSV and TSV)
 //
@@ -58,15 +75,20 @@
 // dictionary-encoded strings) can be read as Ordinal or Label, and so can
 // integer columns, whose values are then written in decimal ("3") before
 // they are matched against the levels. Asking for a Numeric column stored
-// as text, or for any kind of a boolean, temporal or nested column, is an
-// error that names the file, the column and its type. [Spec.Missing] does not
+// as text, for a float or decimal column as Ordinal or Label, or for any
+// kind of a boolean, temporal or nested column, is a [*ColumnError] that
+// names the file, the column and its type. [Spec.Missing] does not
 // apply to Parquet, whose nulls already say what is missing.
 //
 // # Errors
 //
 // Problems in the data are typed so that a caller can point at the recipe
 // line that asked for the column: [*CellError] for a cell or a row that
-// cannot be read, [*MissingColumnError] for a requested column the file lacks.
+// cannot be read, [*MissingColumnError] for a requested column the file
+// lacks, and [*ColumnError] for a requested column that cannot be read as a
+// whole: a Parquet type that does not fit the kind asked for, or a name that
+// the header holds more than once. (A repeated name that is not requested
+// does no harm, and [Header] returns every name, repeats included.)
 // Rows are counted from 1 after the header; for CSV and TSV the file line
 // where the row starts is given as well.
 package dataset

@@ -74,9 +74,32 @@ func (e *MissingColumnError) Error() string {
 	return b.String()
 }
 
+// ColumnError is a problem with a whole requested column (not one cell):
+// its type in the file, or its name appearing twice in the header.
+type ColumnError struct {
+	Path   string
+	Column string
+	// Reason says what is wrong, following the column's name, e.g. "has
+	// type bool, which cannot be read as numbers".
+	Reason string
+	Hint   string // how to fix it, or ""
+}
+
+// Error returns a one-line message naming the file and the column, followed
+// by the hint when there is one, e.g.
+//
+//	data/plots.parquet: column "netted" has type bool, which cannot be read as numbers (hint: store it as integers 0 and 1, or as text)
+func (e *ColumnError) Error() string {
+	s := fmt.Sprintf("%s: column %q %s", e.Path, e.Column, e.Reason)
+	if e.Hint != "" {
+		s += " (hint: " + e.Hint + ")"
+	}
+	return s
+}
+
 // findColumns maps each requested name to its index in have. It returns a
-// *MissingColumnError for the first name that is absent, and an error for a
-// requested name that the header holds more than once.
+// *MissingColumnError for the first name that is absent, and a
+// *ColumnError for a requested name that the header holds more than once.
 func findColumns(path string, have []string, want []ColumnSpec) ([]int, error) {
 	first := make(map[string]int, len(have))
 	for i, h := range have {
@@ -92,7 +115,11 @@ func findColumns(path string, have []string, want []ColumnSpec) ([]int, error) {
 		}
 		for j := i + 1; j < len(have); j++ {
 			if have[j] == c.Name {
-				return nil, fmt.Errorf("%s: column %q appears more than once in the header (fields %d and %d)", path, c.Name, i+1, j+1)
+				return nil, &ColumnError{
+					Path: path, Column: c.Name,
+					Reason: fmt.Sprintf("appears more than once in the header (fields %d and %d)", i+1, j+1),
+					Hint:   "give each column of the file its own name",
+				}
 			}
 		}
 		idx[k] = i

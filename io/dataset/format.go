@@ -2,7 +2,6 @@ package dataset
 
 import (
 	"fmt"
-	"path/filepath"
 	"strings"
 )
 
@@ -42,20 +41,6 @@ func ParseFormat(s string) (Format, error) {
 		return Parquet, nil
 	}
 	return 0, fmt.Errorf("unknown data format %q: known formats are \"csv\", \"tsv\", \"parquet\"", s)
-}
-
-// FormatFromPath infers the format from the file's extension, in any case:
-// .csv, .tsv, .parquet or .parq.
-func FormatFromPath(path string) (Format, error) {
-	switch strings.ToLower(filepath.Ext(path)) {
-	case ".csv":
-		return CSV, nil
-	case ".tsv":
-		return TSV, nil
-	case ".parquet", ".parq":
-		return Parquet, nil
-	}
-	return 0, fmt.Errorf("cannot tell the format of %q from its extension: use .csv, .tsv, .parquet or .parq, or name the format", path)
 }
 
 // Kind says how a column's values are read. The zero value is invalid.

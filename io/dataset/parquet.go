@@ -5,25 +5,27 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
+	"os"
 	"strconv"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
-// openParquet opens a Parquet file with an Arrow view of its schema. The
-// caller closes the returned *file.Reader.
-func openParquet(path string) (*file.Reader, *pqarrow.FileReader, error) {
-	pf, err := file.OpenParquetFile(path, false)
+// openParquet reads the footer of a Parquet file from r and gives an Arrow
+// view of its schema. The caller closes r.
+func openParquet(path string, r parquet.ReaderAtSeeker) (*file.Reader, *pqarrow.FileReader, error) {
+	pf, err := file.NewParquetReader(r)
 	if err != nil {
 		return nil, nil, fmt.Errorf("read dataset %q: not a readable Parquet file: %w", path, err)
 	}
 	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(batchRows)}, memory.DefaultAllocator)
 	if err != nil {
-		pf.Close()
 		return nil, nil, fmt.Errorf("read dataset %q: %w", path, err)
 	}
 	return pf, fr, nil
@@ -39,11 +41,15 @@ func fieldNames(fr *pqarrow.FileReader) []string {
 }
 
 func parquetHeader(path string) ([]string, error) {
-	pf, fr, err := openParquet(path)
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("read dataset %q: %w", path, err)
+	}
+	defer f.Close()
+	_, fr, err := openParquet(path, f)
 	if err != nil {
 		return nil, err
 	}
-	defer pf.Close()
 	return fieldNames(fr), nil
 }
 
@@ -80,55 +86,130 @@ func textType(dt arrow.DataType) bool {
 	return false
 }
 
-// checkParquetType reports a column whose stored type does not fit the
-// requested kind.
-func checkParquetType(path string, cs ColumnSpec, dt arrow.DataType) error {
-	switch cs.Kind {
+// kindNoun names what a column of kind k is read as, for messages.
+func kindNoun(k Kind) string {
+	switch k {
 	case Numeric:
-		if numericType(dt) {
-			return nil
-		}
-		if textType(dt) {
-			return fmt.Errorf("read dataset %q: column %q holds text (%s), not numbers; declare its levels to read it as ordinal", path, cs.Name, dt)
-		}
-	case Ordinal, Label:
-		if textType(dt) || integerType(dt) {
-			return nil
-		}
+		return "numbers"
+	case Ordinal:
+		return "ordinal levels"
+	case Label:
+		return "labels"
 	}
-	return fmt.Errorf("read dataset %q: column %q has type %s, which cannot be read as %s", path, cs.Name, dt, cs.Kind)
+	return k.String()
 }
+
+// checkParquetType reports, as a *ColumnError, a column whose stored type
+// does not fit the requested kind.
+func checkParquetType(path string, cs ColumnSpec, sf pqarrow.SchemaField) error {
+	dt := sf.Field.Type
+	e := &ColumnError{Path: path, Column: cs.Name}
+	switch {
+	case !sf.IsLeaf():
+		e.Reason = fmt.Sprintf("has the nested type %s, which cannot be read", dt)
+		e.Hint = "only top-level columns of numbers or text can be read; write its fields as columns of their own"
+		return e
+	case cs.Kind == Numeric && numericType(dt):
+		return nil
+	case cs.Kind == Numeric && textType(dt):
+		e.Reason = fmt.Sprintf("holds text (%s), not numbers", dt)
+		e.Hint = "declare its levels to read it as ordinal"
+		return e
+	case cs.Kind != Numeric && (textType(dt) || integerType(dt)):
+		return nil
+	}
+	e.Reason = fmt.Sprintf("has type %s, which cannot be read as %s", dt, kindNoun(cs.Kind))
+	switch {
+	case dt.ID() == arrow.BOOL:
+		e.Hint = "store it as integers 0 and 1, or as text"
+	case cs.Kind != Numeric && numericType(dt):
+		e.Hint = "only text and integer columns can be read as " + kindNoun(cs.Kind)
+	}
+	return e
+}
+
+// testHookParquetRead, when set by a test, runs after a Parquet file's data
+// have been read and before the file is hashed the second time.
+var testHookParquetRead func()
 
 // readParquet reads the requested columns of a Parquet file in record
 // batches, projecting on the requested columns.
+//
+// A Parquet file is read out of order (the footer first, then each column
+// chunk), so its bytes cannot be hashed as they stream past as a text
+// file's are. Instead the file is opened once, hashed through that handle,
+// parsed through it, and hashed again; if the two hashes differ, the file
+// was changed while it was read and the read fails rather than pair a hash
+// with bytes that were never analysed. Holding one handle makes a file
+// replaced by a rename harmless (the old bytes are read throughout); the
+// second hash catches a file rewritten in place. It costs one more read of
+// the file, usually from the operating system's cache.
 func readParquet(ctx context.Context, spec Spec) (*Table, error) {
-	sum, size, err := HashFile(spec.Path)
+	f, err := os.Open(spec.Path)
+	if err != nil {
+		return nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
+	}
+	defer f.Close()
+	sum, size, err := hashAt(f)
+	if err != nil {
+		return nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
+	}
+	t, err := parseParquet(ctx, spec, f)
 	if err != nil {
 		return nil, err
 	}
-	pf, fr, err := openParquet(spec.Path)
+	if testHookParquetRead != nil {
+		testHookParquetRead()
+	}
+	sum2, size2, err := hashAt(f)
+	if err != nil {
+		return nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
+	}
+	if sum2 != sum || size2 != size {
+		return nil, fmt.Errorf("%s changed while it was being read; read it again once nothing is writing to it", spec.Path)
+	}
+	t.SHA256, t.Bytes = sum, size
+	return t, nil
+}
+
+// hashAt returns the lowercase hex SHA-256 of f's bytes and their count,
+// reading with ReadAt so that f's offset does not matter.
+func hashAt(f *os.File) (string, int64, error) {
+	return hashStream(io.NewSectionReader(f, 0, math.MaxInt64))
+}
+
+// parseParquet reads the requested columns of the Parquet file behind r.
+func parseParquet(ctx context.Context, spec Spec, r parquet.ReaderAtSeeker) (*Table, error) {
+	pf, fr, err := openParquet(spec.Path, r)
 	if err != nil {
 		return nil, err
 	}
-	defer pf.Close()
 	idx, err := findColumns(spec.Path, fieldNames(fr), spec.Columns)
 	if err != nil {
 		return nil, err
 	}
-	leaves := make([]int, len(idx))
+	// A column requested with two kinds is read from the file once: leaves
+	// lists each distinct leaf once, and pos[k] is the record column that
+	// holds requested column k.
+	var leaves []int
+	pos := make([]int, len(idx))
+	at := make(map[int]int, len(idx))
 	for k, i := range idx {
 		sf := fr.Manifest.Fields[i]
-		if !sf.IsLeaf() {
-			return nil, fmt.Errorf("read dataset %q: column %q has the nested type %s, which cannot be read", spec.Path, spec.Columns[k].Name, sf.Field.Type)
-		}
-		if err := checkParquetType(spec.Path, spec.Columns[k], sf.Field.Type); err != nil {
+		if err := checkParquetType(spec.Path, spec.Columns[k], sf); err != nil {
 			return nil, err
 		}
-		leaves[k] = sf.ColIndex
+		p, ok := at[sf.ColIndex]
+		if !ok {
+			p = len(leaves)
+			at[sf.ColIndex] = p
+			leaves = append(leaves, sf.ColIndex)
+		}
+		pos[k] = p
 	}
 
 	nrows := int(pf.NumRows())
-	t := &Table{Path: spec.Path, SHA256: sum, Bytes: size, Columns: make([]Column, len(spec.Columns))}
+	t := &Table{Path: spec.Path, Columns: make([]Column, len(spec.Columns))}
 	sinks := make([]*sink, len(spec.Columns))
 	for i, c := range spec.Columns {
 		t.Columns[i] = Column{Name: c.Name, Kind: c.Kind}
@@ -155,7 +236,7 @@ func readParquet(ctx context.Context, spec Spec) (*Table, error) {
 		// column only within the same row: keep the smallest row.
 		var first *CellError
 		for k, s := range sinks {
-			if i, p, v := appendArrow(s, rec.Column(k)); p != nil {
+			if i, p, v := appendArrow(s, rec.Column(pos[k])); p != nil {
 				row := rows + i + 1
 				if first == nil || row < first.Row {
 					first = &CellError{Path: spec.Path, Row: row, Column: spec.Columns[k].Name, Value: v, Reason: p.reason, Hint: p.hint}

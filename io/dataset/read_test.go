@@ -81,19 +81,20 @@ func TestReadOrchardCSV(t *testing.T) {
 
 	checks := []struct {
 		col  string
+		kind Kind
 		want []float64
 	}{
 		// fancy, standard, extra fancy, cull, NA, fancy, standard
-		{"grade", []float64{3, 2, 4, 1, nan, 3, 2}},
+		{"grade", Ordinal, []float64{3, 2, 4, 1, nan, 3, 2}},
 		// " 45.25 " is trimmed; Inf and -infinity are kept.
-		{"shade_pct", []float64{12.5, 30, nan, 45.25, inf, 0, -inf}},
+		{"shade_pct", Numeric, []float64{12.5, 30, nan, 45.25, inf, 0, -inf}},
 		// "" is a declared missing token.
-		{"tree_age", []float64{7, 12, 5, 9, 15, nan, 3}},
+		{"tree_age", Numeric, []float64{7, 12, 5, 9, 15, nan, 3}},
 		// "NA" is declared missing; "nan" is always missing.
-		{"sugar_brix", []float64{14.2, nan, 13.1, 11.8, 15.0, 12.4, nan}},
+		{"sugar_brix", Numeric, []float64{14.2, nan, 13.1, 11.8, 15.0, 12.4, nan}},
 	}
 	for _, c := range checks {
-		col := tab.Column(c.col)
+		col := tab.Column(c.col, c.kind)
 		if !sameFloats(col.Values, c.want) {
 			t.Errorf("%s = %v, want %v", c.col, col.Values, c.want)
 		}
@@ -102,7 +103,7 @@ func TestReadOrchardCSV(t *testing.T) {
 		}
 	}
 
-	block := tab.Column("orchard_block")
+	block := tab.Column("orchard_block", Label)
 	if want := []string{"north", "north", "south", "south", "east", "east", ""}; !slices.Equal(block.Labels, want) {
 		t.Errorf("orchard_block = %q, want %q", block.Labels, want)
 	}
@@ -112,7 +113,7 @@ func TestReadOrchardCSV(t *testing.T) {
 	if block.Values != nil {
 		t.Errorf("orchard_block: Values set on a label column")
 	}
-	notes := tab.Column("notes")
+	notes := tab.Column("notes", Label)
 	wantNotes := []string{"", "pruned late, 2025", "windbreak side\nsecond line of the note", "", `said "best tree"`, "", "no shade cloth"}
 	if !slices.Equal(notes.Labels, wantNotes) {
 		t.Errorf("notes = %q, want %q", notes.Labels, wantNotes)
@@ -296,5 +297,55 @@ func TestHeader(t *testing.T) {
 	}
 	if _, err := Header("testdata/sensors.tsv", 0); err == nil {
 		t.Error("format 0: no error")
+	}
+}
+
+// A column used both as a variable and as a grouping column is requested
+// twice, with two kinds, and read both ways.
+func TestReadColumnTwoKinds(t *testing.T) {
+	p := writeTemp(t, "scores.csv", "year,score,grade\n2021,3.5,fancy\n2022,4,cull\nNA,2,fancy\n2021,1,NA\n")
+	tab := mustRead(t, Spec{Path: p, Format: CSV, Missing: []string{"NA"}, Columns: []ColumnSpec{
+		{Name: "year", Kind: Numeric},
+		{Name: "score", Kind: Numeric},
+		{Name: "year", Kind: Label},
+		{Name: "grade", Kind: Label},
+		{Name: "grade", Kind: Ordinal, Levels: grades},
+	}})
+	var got []string
+	for _, c := range tab.Columns {
+		got = append(got, c.Name+" "+c.Kind.String())
+	}
+	if want := []string{"year numeric", "score numeric", "year label", "grade label", "grade ordinal"}; !slices.Equal(got, want) {
+		t.Errorf("columns %q, want the spec's order %q", got, want)
+	}
+	if y := tab.Column("year", Numeric); !sameFloats(y.Values, []float64{2021, 2022, nan, 2021}) || y.Labels != nil {
+		t.Errorf("year as numbers = %v, labels %q", y.Values, y.Labels)
+	}
+	y := tab.Column("year", Label)
+	if !slices.Equal(y.Labels, []string{"2021", "2022", "", "2021"}) || !slices.Equal(y.Missing, []bool{false, false, true, false}) || y.Values != nil {
+		t.Errorf("year as labels = %q, missing %v, values %v", y.Labels, y.Missing, y.Values)
+	}
+	if g := tab.Column("grade", Ordinal); !sameFloats(g.Values, []float64{3, 1, 3, nan}) {
+		t.Errorf("grade as ordinal = %v", g.Values)
+	}
+	if g := tab.Column("grade", Label); !slices.Equal(g.Labels, []string{"fancy", "cull", "fancy", ""}) {
+		t.Errorf("grade as labels = %q", g.Labels)
+	}
+	if tab.Column("score", Label) != nil || tab.Column("grade", Numeric) != nil {
+		t.Error("Column found a (name, kind) that was not requested")
+	}
+
+	// A bad number is reported although the column is also read as labels,
+	// whichever comes first in the spec.
+	p = writeTemp(t, "bad.csv", "year,score\n2021,3.5\n20x2,4\n")
+	for _, cols := range [][]ColumnSpec{
+		{{Name: "year", Kind: Label}, {Name: "year", Kind: Numeric}},
+		{{Name: "year", Kind: Numeric}, {Name: "year", Kind: Label}},
+	} {
+		_, err := Read(context.Background(), Spec{Path: p, Format: CSV, Columns: cols})
+		var ce *CellError
+		if !errors.As(err, &ce) || ce.Row != 2 || ce.Line != 3 || ce.Column != "year" || ce.Value != "20x2" || ce.Reason != "is not a number" {
+			t.Errorf("%s first: err = %v, want row 2 (line 3), column year, value 20x2", cols[0].Kind, err)
+		}
 	}
 }

@@ -24,6 +24,10 @@ type Spec struct {
 	// no case folding. Include "" for empty cells.
 	Missing []string
 	// Columns are the only columns read; they are returned in this order.
+	// A name may appear twice with different kinds, as a Label and as a
+	// Numeric or Ordinal column, and is then read both ways (a column that
+	// is both a variable and a grouping column). The same name and kind
+	// twice, or one name as both Numeric and Ordinal, is an error.
 	Columns []ColumnSpec
 }
 
@@ -44,18 +48,22 @@ type Column struct {
 
 // Table is what Read returns: the file's identity and the requested columns.
 type Table struct {
-	Path    string
-	SHA256  string // lowercase hex SHA-256 of the file's bytes
-	Bytes   int64  // the file's size
-	Rows    int    // data rows, the header excluded
+	Path   string
+	SHA256 string // lowercase hex SHA-256 of the bytes that were parsed
+	Bytes  int64  // the number of bytes that were parsed: the file's size
+	Rows   int    // data rows, the header excluded
+	// Columns follow [Spec.Columns]: one per requested column, in the
+	// order requested. A name repeats when it was requested with two
+	// kinds; use [Table.Column] to look a column up by name and kind.
 	Columns []Column
 }
 
-// Column returns the column with the given name, or nil.
-func (t *Table) Column(name string) *Column {
+// Column returns the column read with the given name and kind, or nil when
+// the spec did not ask for that pair.
+func (t *Table) Column(name string, kind Kind) *Column {
 	for i := range t.Columns {
-		if t.Columns[i].Name == name {
-			return &t.Columns[i]
+		if c := &t.Columns[i]; c.Name == name && c.Kind == kind {
+			return c
 		}
 	}
 	return nil
@@ -63,13 +71,18 @@ func (t *Table) Column(name string) *Column {
 
 // checkSpec reports a spec that a caller should never have built: these are
 // recipe problems the recipe package is expected to catch first.
+//
+// A name may be requested once as a Label and once as a Numeric or Ordinal
+// column; requesting the same (name, kind) twice, or a name as both Numeric
+// and Ordinal, is contradictory.
 func checkSpec(spec Spec) error {
-	seen := make(map[string]bool, len(spec.Columns))
+	type nameKind struct {
+		name string
+		kind Kind
+	}
+	seen := make(map[nameKind]bool, len(spec.Columns))
+	valueKind := make(map[string]Kind, len(spec.Columns)) // Numeric or Ordinal
 	for _, c := range spec.Columns {
-		if seen[c.Name] {
-			return fmt.Errorf("column %q is requested twice", c.Name)
-		}
-		seen[c.Name] = true
 		switch c.Kind {
 		case Numeric, Label:
 			if len(c.Levels) > 0 {
@@ -89,6 +102,18 @@ func checkSpec(spec Spec) error {
 		default:
 			return fmt.Errorf("column %q: invalid kind %d", c.Name, int(c.Kind))
 		}
+		k := nameKind{c.Name, c.Kind}
+		if seen[k] {
+			return fmt.Errorf("column %q is requested twice as %s", c.Name, c.Kind)
+		}
+		seen[k] = true
+		if c.Kind == Label {
+			continue
+		}
+		if vk, ok := valueKind[c.Name]; ok && vk != c.Kind {
+			return fmt.Errorf("column %q is requested both as numeric and as ordinal", c.Name)
+		}
+		valueKind[c.Name] = c.Kind
 	}
 	return nil
 }
