@@ -3,48 +3,108 @@ package render
 import (
 	"errors"
 	"fmt"
+	"io/fs"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strconv"
 )
 
 // A Batch stages files next to their destinations and moves them into place
 // together, so that a run either replaces all of its outputs or leaves every
 // previous one as it was.
 //
-// Add writes each file's bytes to a hidden temporary file in the
-// destination's folder and syncs it to disk; Commit renames the temporaries
-// onto their destinations, in the order they were added, and syncs the
-// folders; Abort removes whatever has not been committed. A rename within one
-// folder replaces the destination atomically, so a reader sees either the old
-// file or the new one, never a mixture.
+// Its life is
 //
-// The set of files is not one atomic unit: if a rename fails part way
-// through Commit (which takes an I/O error or a permission change between Add
-// and Commit), the files renamed before it stay replaced and Commit says
-// which file failed. TODO: keep the replaced files as hidden backups until the
-// last rename succeeds, so Commit can roll back too.
+//	Add … → Commit → Release  (the run is kept)
+//	Add … → Commit → Undo     (a later step of the run failed)
+//	Add … → Abort             (the run failed before Commit)
+//
+// Add writes each file's bytes to a hidden temporary file in the
+// destination's folder and syncs it to disk. Commit moves the temporaries
+// onto their destinations, in the order they were added, keeping each file
+// it replaces as a hidden backup in the same folder, and syncs the folders.
+// A rename within one folder replaces the destination atomically, so a
+// reader sees either the old file or the new one, never a mixture. If any
+// step of Commit fails, it puts back every file it had already replaced and
+// reports the file that failed, so the outputs are as they were before.
+//
+// After a successful Commit the caller decides: Release deletes the backups
+// and keeps the new files; Undo puts the previous files back (and removes
+// the files that did not exist before), for when something that must happen
+// together with the outputs, such as appending the ledger record, fails.
+//
+// Abort ends the Batch without publishing anything new: before Commit it
+// removes the temporaries. After a successful Commit that was neither
+// released nor undone, the new files are already published, so Abort can
+// only tidy up: it releases the Batch. A deferred Abort therefore never
+// leaves hidden files behind, and a caller that must roll back calls Undo
+// before it runs:
+//
+//	var b render.Batch
+//	defer b.Abort()
+//	… b.Add(path, data) …
+//	if err := b.Commit(); err != nil {
+//		return err // every previous output is in place
+//	}
+//	if err := appendLedger(); err != nil {
+//		return errors.Join(err, b.Undo())
+//	}
+//	return b.Release()
+//
+// Abort, Release and Undo may each be called more than once, and any of
+// them in a state where it has nothing to do does nothing. After Undo,
+// Release and Abort do nothing (they would otherwise delete the backups of
+// files that could not be put back).
+//
+// The backup is a second hard link to the replaced file, so the destination
+// never goes missing. On a file system without hard links the file is
+// renamed aside instead, and for that moment the destination is absent.
+// A crash part way through Commit or Undo can leave hidden temporaries and
+// backups (named .NAME.tmp-* and .NAME.bak-*) beside the destinations; the
+// backups then hold the previous outputs.
 //
 // The zero Batch is empty and ready to use. A Batch is not safe for
 // concurrent use.
 type Batch struct {
-	staged    []stagedFile
-	committed bool
+	staged []stagedFile
+	state  batchState
 }
+
+// batchState is where a Batch is in its life. The zero value is a Batch
+// that is still staging files.
+type batchState int
+
+const (
+	batchStaging   batchState = iota // Add, Commit and Abort are allowed
+	batchCommitted                   // outputs replaced; backups held
+	batchReleased                    // backups deleted; the new outputs stay
+	batchUndone                      // previous outputs restored (perhaps only partly, see Undo)
+	batchAborted                     // Abort, or a Commit that failed and rolled back
+)
 
 type stagedFile struct {
 	path string // the destination
-	temp string // the hidden temporary beside it
+	temp string // the hidden temporary beside it; "" once moved or removed
+	// backup is the hidden copy of the file that was at path before Commit,
+	// or "" when there was none (or it has been restored or released).
+	backup string
+	// displaced is true while path no longer holds what it held before
+	// Commit: the temporary has been renamed onto it, or the previous file
+	// has been renamed aside.
+	displaced bool
 }
 
 // Add stages data for path: it creates path's folder if needed and writes
 // data to a new hidden temporary file there, with permissions 0644, synced to
-// disk. It never touches path itself. Adding the same path twice is an error.
+// disk. It never touches path itself. Adding the same path twice is an error,
+// and so is Add after Commit or Abort.
 func (b *Batch) Add(path string, data []byte) error {
-	if b.committed {
-		return fmt.Errorf("stage %q: batch already committed", path)
+	if b.state != batchStaging {
+		return fmt.Errorf("stage %q: batch already %s", path, b.state)
 	}
 	for _, s := range b.staged {
-		if s.path == path {
+		if filepath.Clean(s.path) == filepath.Clean(path) {
 			return fmt.Errorf("stage %q: path added twice", path)
 		}
 	}
@@ -81,45 +141,257 @@ func (b *Batch) Add(path string, data []byte) error {
 	return nil
 }
 
-// Commit renames every staged file onto its destination, in the order they
-// were added, then syncs each destination folder so the renames survive a
-// crash. After a failed rename it removes the temporaries not yet renamed and
-// reports the destination that failed. Committing an empty batch does
-// nothing; committing twice is an error.
+// Commit moves every staged file onto its destination, in the order they
+// were added, keeping each replaced file as a hidden backup, then syncs each
+// destination folder so the renames survive a crash. A destination that is a
+// folder is not replaced: that is an error.
+//
+// If a step fails, Commit restores every destination it had replaced from
+// its backup, removes the destinations that did not exist before and the
+// temporaries not yet moved, and returns an error naming the file that
+// failed (and, if putting something back failed too, where its backup is).
+// The Batch is then finished, as after Abort.
+//
+// Committing an empty batch does nothing; committing twice, or after Abort,
+// is an error.
 func (b *Batch) Commit() error {
-	if b.committed {
-		return errors.New("commit batch: already committed")
+	if b.state != batchStaging {
+		return fmt.Errorf("commit batch: already %s", b.state)
 	}
-	b.committed = true
 	var dirs []string
-	for i, s := range b.staged {
-		if err := os.Rename(s.temp, s.path); err != nil {
-			for _, rest := range b.staged[i:] {
-				os.Remove(rest.temp)
-			}
-			return fmt.Errorf("commit %q: %w", s.path, err)
+	for i := range b.staged {
+		s := &b.staged[i]
+		if err := s.replace(); err != nil {
+			err = fmt.Errorf("commit %q: %w", s.path, err)
+			return errors.Join(err, b.rollBack())
 		}
 		dirs = appendNew(dirs, filepath.Dir(s.path))
 	}
 	for _, dir := range dirs {
 		if err := syncDir(dir); err != nil {
-			return fmt.Errorf("commit: sync folder %q: %w", dir, err)
+			err = fmt.Errorf("commit: sync folder %q: %w", dir, err)
+			return errors.Join(err, b.rollBack())
 		}
+	}
+	b.state = batchCommitted
+	return nil
+}
+
+// replace moves the previous file at s.path (if any) to a backup and the
+// temporary onto s.path.
+func (s *stagedFile) replace() error {
+	info, err := os.Lstat(s.path)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		// Nothing to keep.
+	case err != nil:
+		return err
+	case info.IsDir():
+		return errors.New("destination is a folder")
+	default:
+		backup, displaced, err := backUp(s.path)
+		if err != nil {
+			return fmt.Errorf("back up previous file: %w", err)
+		}
+		s.backup, s.displaced = backup, displaced
+	}
+	if err := os.Rename(s.temp, s.path); err != nil {
+		return err
+	}
+	s.temp = ""
+	s.displaced = true
+	return nil
+}
+
+// linkFile is os.Link; tests replace it to take the path of a file system
+// without hard links.
+var linkFile = os.Link
+
+// backUp keeps the file at path under a new hidden name beside it: a second
+// hard link where the file system allows one, which leaves path in place,
+// or else the file itself renamed aside (displaced is then true).
+func backUp(path string) (backup string, displaced bool, err error) {
+	dir, base := filepath.Split(path)
+	// Like os.CreateTemp, try random names until one is free; 10000 tries
+	// is os.CreateTemp's own limit.
+	for range 10000 {
+		name := filepath.Join(dir, "."+base+".bak-"+strconv.FormatUint(uint64(rand.Uint32()), 10))
+		err := linkFile(path, name)
+		if err == nil {
+			return name, false, nil
+		}
+		if !errors.Is(err, fs.ErrExist) {
+			break // no hard links here (or no permission to make one)
+		}
+	}
+	// Reserve a name, then rename the file over it, which is atomic.
+	if dir == "" {
+		dir = "."
+	}
+	f, err := os.CreateTemp(dir, "."+base+".bak-*")
+	if err != nil {
+		return "", false, err
+	}
+	name := f.Name()
+	f.Close()
+	if err := os.Rename(path, name); err != nil {
+		os.Remove(name)
+		return "", false, err
+	}
+	return name, true, nil
+}
+
+// restore puts back what s.path held before Commit and deletes the backup
+// and the temporary. It leaves s unchanged where it fails, so a later call
+// can try again.
+func (s *stagedFile) restore() error {
+	var errs []error
+	if s.temp != "" {
+		if err := os.Remove(s.temp); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			errs = append(errs, fmt.Errorf("remove temporary %q: %w", s.temp, err))
+		} else {
+			s.temp = ""
+		}
+	}
+	switch {
+	case s.backup != "" && s.displaced:
+		if err := os.Rename(s.backup, s.path); err != nil {
+			errs = append(errs, fmt.Errorf("restore %q from backup %q: %w", s.path, s.backup, err))
+		} else {
+			s.backup, s.displaced = "", false
+		}
+	case s.backup != "":
+		// path still holds the previous file; the backup is a spare link.
+		if err := os.Remove(s.backup); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			errs = append(errs, fmt.Errorf("remove backup %q: %w", s.backup, err))
+		} else {
+			s.backup = ""
+		}
+	case s.displaced:
+		// There was no file at path before.
+		if err := os.Remove(s.path); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			errs = append(errs, fmt.Errorf("remove %q: %w", s.path, err))
+		} else {
+			s.displaced = false
+		}
+	}
+	return errors.Join(errs...)
+}
+
+// rollBack restores every file, last added first, and syncs the folders;
+// Commit calls it when it fails. It returns nil when everything is back.
+func (b *Batch) rollBack() error {
+	b.state = batchAborted
+	err := b.restoreAll()
+	if err != nil {
+		err = fmt.Errorf("roll back: %w", err)
+	}
+	return err
+}
+
+// restoreAll restores every staged file, last added first, so that a path
+// is restored in the reverse order of its changes, and syncs the folders.
+func (b *Batch) restoreAll() error {
+	var errs []error
+	var dirs []string
+	for i := len(b.staged) - 1; i >= 0; i-- {
+		s := &b.staged[i]
+		if err := s.restore(); err != nil {
+			errs = append(errs, err)
+		}
+		dirs = appendNew(dirs, filepath.Dir(s.path))
+	}
+	for _, dir := range dirs {
+		if err := syncDir(dir); err != nil {
+			errs = append(errs, fmt.Errorf("sync folder %q: %w", dir, err))
+		}
+	}
+	return errors.Join(errs...)
+}
+
+// Undo, after a successful Commit, puts every previous output back: each
+// replaced file is restored from its backup, and each file that did not
+// exist before is removed; then the folders are synced. It is for a step
+// that must succeed together with the outputs, such as appending the ledger
+// record, and failed after Commit.
+//
+// If some file cannot be put back, Undo still restores the others and
+// returns an error naming the file and its backup; calling Undo again
+// retries only what failed. Undo does nothing before Commit, after a failed
+// Commit, or after Release.
+func (b *Batch) Undo() error {
+	if b.state != batchCommitted && b.state != batchUndone {
+		return nil
+	}
+	b.state = batchUndone
+	if err := b.restoreAll(); err != nil {
+		return fmt.Errorf("undo batch: %w", err)
 	}
 	return nil
 }
 
-// Abort removes every temporary file that has not been committed. It is safe
-// to call more than once and after Commit, where it does nothing; a deferred
-// Abort therefore cleans up after any early return.
+// Release, after a successful Commit, keeps the new outputs and deletes the
+// backups of the files they replaced. It returns an error naming any backup
+// it could not delete (the outputs are in place regardless), and does
+// nothing when called again, before Commit, after a failed Commit or after
+// Undo.
+func (b *Batch) Release() error {
+	if b.state != batchCommitted && b.state != batchReleased {
+		return nil
+	}
+	b.state = batchReleased
+	var errs []error
+	for i := range b.staged {
+		s := &b.staged[i]
+		if s.backup == "" {
+			continue
+		}
+		if err := os.Remove(s.backup); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			errs = append(errs, fmt.Errorf("release batch: remove backup %q: %w", s.backup, err))
+			continue
+		}
+		s.backup = ""
+	}
+	return errors.Join(errs...)
+}
+
+// Abort, before Commit, removes every staged temporary file and finishes the
+// Batch: Add and Commit are errors after it. After a successful Commit that
+// was neither released nor undone, it calls Release (ignoring its error: the
+// outputs are in place, and a backup that cannot be deleted stays as a
+// hidden file). After Release, Undo or a failed Commit it does nothing. It is
+// safe to call more than once, and meant to be deferred.
 func (b *Batch) Abort() {
-	if b.committed {
-		return
+	switch b.state {
+	case batchStaging:
+		b.state = batchAborted
+		for i := range b.staged {
+			s := &b.staged[i]
+			if s.temp != "" {
+				os.Remove(s.temp)
+				s.temp = ""
+			}
+		}
+	case batchCommitted:
+		b.Release()
 	}
-	for _, s := range b.staged {
-		os.Remove(s.temp)
+}
+
+// String describes s for error messages ("committed", "aborted", …).
+func (s batchState) String() string {
+	switch s {
+	case batchStaging:
+		return "staging"
+	case batchCommitted:
+		return "committed"
+	case batchReleased:
+		return "committed and released"
+	case batchUndone:
+		return "committed and undone"
+	case batchAborted:
+		return "aborted"
 	}
-	b.staged = nil
+	return "batchState(" + strconv.Itoa(int(s)) + ")"
 }
 
 // appendNew appends s to list unless it is already there.

@@ -1,7 +1,10 @@
 package render
 
 import (
+	"errors"
+	"io/fs"
 	"os"
+	"path"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -45,6 +48,19 @@ func readFile(t *testing.T, path string) string {
 	return string(b)
 }
 
+// hiddenFiles returns the files under root whose names start with a dot:
+// temporaries and backups that a Batch left behind.
+func hiddenFiles(t *testing.T, root string) []string {
+	t.Helper()
+	var hidden []string
+	for _, f := range listTree(t, root) {
+		if strings.HasPrefix(path.Base(f), ".") {
+			hidden = append(hidden, f)
+		}
+	}
+	return hidden
+}
+
 func TestBatchCommit(t *testing.T) {
 	dir := t.TempDir()
 	old := filepath.Join(dir, "table_1.md")
@@ -69,6 +85,9 @@ func TestBatchCommit(t *testing.T) {
 	if err := b.Add(old, []byte("again")); err == nil {
 		t.Error("adding a path twice: no error")
 	}
+	if err := b.Add(filepath.Join(dir, ".", "table_1.md"), []byte("again")); err == nil {
+		t.Error("adding a path twice, spelled differently: no error")
+	}
 
 	if err := b.Commit(); err != nil {
 		t.Fatal(err)
@@ -86,21 +105,154 @@ func TestBatchCommit(t *testing.T) {
 	if info.Mode().Perm() != 0o644 {
 		t.Errorf("mode %v, want 0644", info.Mode().Perm())
 	}
-	want := []string{"out/sensors/table_2.csv", "table_1.md"}
-	if got := listTree(t, dir); !slices.Equal(got, want) {
-		t.Errorf("files after Commit %v, want %v (a temporary left behind?)", got, want)
+	// Until Release or Undo, the replaced file is kept as a hidden backup
+	// beside it, and only that: the new file needs none.
+	hidden := hiddenFiles(t, dir)
+	if len(hidden) != 1 || !strings.HasPrefix(hidden[0], ".table_1.md.bak-") {
+		t.Fatalf("hidden files after Commit %v, want one backup of table_1.md", hidden)
+	}
+	if got := readFile(t, filepath.Join(dir, hidden[0])); got != "old table\n" {
+		t.Errorf("backup holds %q, want the old table", got)
 	}
 
-	b.Abort() // a no-op after Commit
-	if got := readFile(t, old); got != "new table\n" {
-		t.Errorf("Abort after Commit changed %s to %q", old, got)
+	if err := b.Release(); err != nil {
+		t.Fatal(err)
 	}
+	if err := b.Release(); err != nil { // twice is fine
+		t.Errorf("second Release: %v", err)
+	}
+	if err := b.Undo(); err != nil { // a no-op after Release
+		t.Errorf("Undo after Release: %v", err)
+	}
+	b.Abort() // a no-op after Release
+	if got := readFile(t, old); got != "new table\n" {
+		t.Errorf("after Release, %s = %q", old, got)
+	}
+	if got := readFile(t, nested); got != "a,b\n1,2\n" {
+		t.Errorf("after Release, %s = %q", nested, got)
+	}
+	want := []string{"out/sensors/table_2.csv", "table_1.md"}
+	if got := listTree(t, dir); !slices.Equal(got, want) {
+		t.Errorf("files after Release %v, want %v (a temporary or backup left behind?)", got, want)
+	}
+
 	if err := b.Commit(); err == nil {
 		t.Error("second Commit: no error")
 	}
 	if err := b.Add(filepath.Join(dir, "late.md"), nil); err == nil {
 		t.Error("Add after Commit: no error")
 	}
+}
+
+func TestBatchAbortAfterCommit(t *testing.T) {
+	// A deferred Abort after a Commit that was neither released nor undone
+	// keeps the new outputs and deletes the backups, as Release does.
+	dir := t.TempDir()
+	dest := filepath.Join(dir, "t.md")
+	writeFile(t, dest, "old\n")
+	var b Batch
+	if err := b.Add(dest, []byte("new\n")); err != nil {
+		t.Fatal(err)
+	}
+	if err := b.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if hidden := hiddenFiles(t, dir); len(hidden) != 1 {
+		t.Fatalf("hidden files after Commit %v, want one backup", hidden)
+	}
+	b.Abort()
+	b.Abort()
+	if got := readFile(t, dest); got != "new\n" {
+		t.Errorf("Abort after Commit changed %s to %q", dest, got)
+	}
+	if got := listTree(t, dir); !slices.Equal(got, []string{"t.md"}) {
+		t.Errorf("files after Abort %v, want only t.md", got)
+	}
+	if err := b.Undo(); err != nil { // nothing left to undo with
+		t.Errorf("Undo after Abort: %v", err)
+	}
+	if got := readFile(t, dest); got != "new\n" {
+		t.Errorf("Undo after Abort changed %s to %q", dest, got)
+	}
+}
+
+// commitUndo commits a batch that replaces two existing files and creates
+// two new ones, one in a new folder, then undoes it and checks that the
+// folder holds exactly what it held before.
+func commitUndo(t *testing.T) {
+	dir := t.TempDir()
+	kept := filepath.Join(dir, "table_1.md")
+	writeFile(t, kept, "old table\n")
+	private := filepath.Join(dir, "table_2.json")
+	writeFile(t, private, "[]\n")
+	if err := os.Chmod(private, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	fresh := filepath.Join(dir, "table_3.csv")
+	nested := filepath.Join(dir, "out", "table_4.csv")
+	before := listTree(t, dir)
+
+	var b Batch
+	defer b.Abort()
+	for _, p := range []string{kept, fresh, private, nested} {
+		if err := b.Add(p, []byte("new "+filepath.Base(p)+"\n")); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := b.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if got := readFile(t, fresh); got != "new table_3.csv\n" {
+		t.Fatalf("after Commit, %s = %q", fresh, got)
+	}
+
+	if err := b.Undo(); err != nil {
+		t.Fatal(err)
+	}
+	if err := b.Undo(); err != nil { // twice is fine
+		t.Errorf("second Undo: %v", err)
+	}
+	if err := b.Release(); err != nil { // a no-op after Undo
+		t.Errorf("Release after Undo: %v", err)
+	}
+	b.Abort()
+
+	if got := readFile(t, kept); got != "old table\n" {
+		t.Errorf("after Undo, %s = %q, want the old bytes", kept, got)
+	}
+	if got := readFile(t, private); got != "[]\n" {
+		t.Errorf("after Undo, %s = %q, want the old bytes", private, got)
+	}
+	if info, err := os.Stat(private); err != nil || info.Mode().Perm() != 0o600 {
+		t.Errorf("after Undo, %s: %v, %v; want mode 0600 kept", private, info, err)
+	}
+	for _, p := range []string{fresh, nested} {
+		if _, err := os.Lstat(p); !errors.Is(err, fs.ErrNotExist) {
+			t.Errorf("after Undo, %s exists (err %v), want it removed", p, err)
+		}
+	}
+	if got := listTree(t, dir); !slices.Equal(got, before) {
+		t.Errorf("files after Undo %v, want %v", got, before)
+	}
+	if err := b.Commit(); err == nil {
+		t.Error("Commit after Undo: no error")
+	}
+}
+
+func TestBatchUndo(t *testing.T) { commitUndo(t) }
+
+// withoutHardLinks makes the Batch take its path for file systems without
+// hard links (such as FAT) until the test ends.
+func withoutHardLinks(t *testing.T) {
+	linkFile = func(oldname, newname string) error {
+		return &os.LinkError{Op: "link", Old: oldname, New: newname, Err: errors.ErrUnsupported}
+	}
+	t.Cleanup(func() { linkFile = os.Link })
+}
+
+func TestBatchUndoWithoutHardLinks(t *testing.T) {
+	withoutHardLinks(t)
+	commitUndo(t)
 }
 
 func TestBatchAbort(t *testing.T) {
@@ -132,30 +284,74 @@ func TestBatchAbort(t *testing.T) {
 	}
 }
 
-func TestBatchCommitFailure(t *testing.T) {
+// commitFailure commits a batch whose third file cannot be moved into place
+// (a non-empty folder stands where it should go) and checks that every
+// destination is left as it was, with no hidden files.
+func commitFailure(t *testing.T) {
 	dir := t.TempDir()
-	var b Batch
-	if err := b.Add(filepath.Join(dir, "a.csv"), []byte("a\n")); err != nil {
-		t.Fatal(err)
-	}
-	blocked := filepath.Join(dir, "b.csv")
-	if err := b.Add(blocked, []byte("b\n")); err != nil {
-		t.Fatal(err)
-	}
-	// A non-empty folder where the file should go makes its rename fail.
+	first := filepath.Join(dir, "a.csv")
+	writeFile(t, first, "old a\n")
+	fresh := filepath.Join(dir, "new", "b.csv")
+	blocked := filepath.Join(dir, "c.csv")
 	if err := os.MkdirAll(filepath.Join(blocked, "inside"), 0o755); err != nil {
 		t.Fatal(err)
 	}
-	err := b.Commit()
-	if err == nil || !strings.Contains(err.Error(), "b.csv") {
-		t.Fatalf("Commit = %v, want an error naming b.csv", err)
-	}
-	b.Abort()
-	for _, f := range listTree(t, dir) {
-		if strings.Contains(f, ".tmp-") {
-			t.Errorf("temporary %q left after failed Commit", f)
+	last := filepath.Join(dir, "d.csv")
+	writeFile(t, last, "old d\n")
+
+	var b Batch
+	defer b.Abort()
+	for _, p := range []string{first, fresh, blocked, last} {
+		if err := b.Add(p, []byte("new "+filepath.Base(p)+"\n")); err != nil {
+			t.Fatal(err)
 		}
 	}
+	before := listTree(t, dir) // with the temporaries
+	err := b.Commit()
+	if err == nil || !strings.Contains(err.Error(), "c.csv") {
+		t.Fatalf("Commit = %v, want an error naming c.csv", err)
+	}
+	if strings.Contains(err.Error(), "roll back") {
+		t.Errorf("Commit = %v; the roll-back should have succeeded", err)
+	}
+	if got := readFile(t, first); got != "old a\n" {
+		t.Errorf("after failed Commit, %s = %q, want the old bytes", first, got)
+	}
+	if got := readFile(t, last); got != "old d\n" {
+		t.Errorf("after failed Commit, %s = %q, want the old bytes", last, got)
+	}
+	if _, err := os.Lstat(fresh); !errors.Is(err, fs.ErrNotExist) {
+		t.Errorf("after failed Commit, %s exists (err %v)", fresh, err)
+	}
+	if info, err := os.Stat(blocked); err != nil || !info.IsDir() {
+		t.Errorf("after failed Commit, folder %s: %v, %v", blocked, info, err)
+	}
+	if hidden := hiddenFiles(t, dir); len(hidden) != 0 {
+		t.Errorf("hidden files after failed Commit: %v (of %v)", hidden, before)
+	}
+
+	// The batch is finished; nothing else changes anything.
+	b.Abort()
+	if err := b.Undo(); err != nil {
+		t.Errorf("Undo after failed Commit: %v", err)
+	}
+	if err := b.Release(); err != nil {
+		t.Errorf("Release after failed Commit: %v", err)
+	}
+	if err := b.Commit(); err == nil {
+		t.Error("Commit after failed Commit: no error")
+	}
+	want := []string{"a.csv", "d.csv"} // and the folders c.csv/inside and new
+	if got := listTree(t, dir); !slices.Equal(got, want) {
+		t.Errorf("files after failed Commit %v, want %v", got, want)
+	}
+}
+
+func TestBatchCommitFailure(t *testing.T) { commitFailure(t) }
+
+func TestBatchCommitFailureWithoutHardLinks(t *testing.T) {
+	withoutHardLinks(t)
+	commitFailure(t)
 }
 
 func TestBatchEmpty(t *testing.T) {
@@ -163,5 +359,84 @@ func TestBatchEmpty(t *testing.T) {
 	if err := b.Commit(); err != nil {
 		t.Errorf("empty Commit: %v", err)
 	}
+	if err := b.Undo(); err != nil {
+		t.Errorf("empty Undo: %v", err)
+	}
+	if err := b.Release(); err != nil {
+		t.Errorf("empty Release: %v", err)
+	}
 	b.Abort()
+}
+
+func TestBatchBeforeCommit(t *testing.T) {
+	// Undo and Release before Commit do nothing: the temporaries stay
+	// staged and the destination untouched.
+	dir := t.TempDir()
+	dest := filepath.Join(dir, "t.md")
+	writeFile(t, dest, "old\n")
+	var b Batch
+	if err := b.Add(dest, []byte("new\n")); err != nil {
+		t.Fatal(err)
+	}
+	if err := b.Undo(); err != nil {
+		t.Errorf("Undo before Commit: %v", err)
+	}
+	if err := b.Release(); err != nil {
+		t.Errorf("Release before Commit: %v", err)
+	}
+	if got := readFile(t, dest); got != "old\n" {
+		t.Errorf("%s = %q", dest, got)
+	}
+	b.Abort()
+	if hidden := hiddenFiles(t, dir); len(hidden) != 0 {
+		t.Errorf("hidden files after Abort: %v", hidden)
+	}
+	if err := b.Add(filepath.Join(dir, "u.md"), nil); err == nil {
+		t.Error("Add after Abort: no error")
+	}
+	if err := b.Commit(); err == nil {
+		t.Error("Commit after Abort: no error")
+	}
+}
+
+// commitLostTemporary commits a batch in which the temporary of an existing
+// file has vanished, so its rename fails after the previous file was backed
+// up, and checks that every destination is left as it was.
+func commitLostTemporary(t *testing.T) {
+	dir := t.TempDir()
+	first := filepath.Join(dir, "a.md")
+	writeFile(t, first, "old a\n")
+	fresh := filepath.Join(dir, "b.md")
+	broken := filepath.Join(dir, "c.md")
+	writeFile(t, broken, "old c\n")
+
+	var b Batch
+	defer b.Abort()
+	for _, p := range []string{first, fresh, broken} {
+		if err := b.Add(p, []byte("new\n")); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := os.Remove(b.staged[2].temp); err != nil {
+		t.Fatal(err)
+	}
+	err := b.Commit()
+	if err == nil || !strings.Contains(err.Error(), "c.md") || strings.Contains(err.Error(), "roll back") {
+		t.Fatalf("Commit = %v, want an error naming c.md and a clean roll-back", err)
+	}
+	for p, want := range map[string]string{first: "old a\n", broken: "old c\n"} {
+		if got := readFile(t, p); got != want {
+			t.Errorf("after failed Commit, %s = %q, want %q", p, got, want)
+		}
+	}
+	if got, want := listTree(t, dir), []string{"a.md", "c.md"}; !slices.Equal(got, want) {
+		t.Errorf("files after failed Commit %v, want %v", got, want)
+	}
+}
+
+func TestBatchLostTemporary(t *testing.T) { commitLostTemporary(t) }
+
+func TestBatchLostTemporaryWithoutHardLinks(t *testing.T) {
+	withoutHardLinks(t)
+	commitLostTemporary(t)
 }

@@ -3,14 +3,14 @@ package render
 import (
 	"bufio"
 	"encoding/csv"
-	"math"
 )
 
 // encodeCSV writes t as CSV: a header row of column names, then one record
 // per row. Fields are quoted as RFC 4180 describes (by encoding/csv) and
 // records end in LF, which every CSV reader we target accepts and which
-// keeps the files diff-friendly in git. An undefined number is an empty
-// field; a list is joined with "; ". Title and Notes are not written.
+// keeps the files diff-friendly in git. An undefined number or interval is
+// an empty field; an interval is "[lo, hi]" (quoted, since it holds a comma);
+// a list is joined with "; ". Title and Notes are not written.
 func encodeCSV(w *bufio.Writer, t *Table, digits int) error {
 	cw := csv.NewWriter(w)
 	if err := cw.Write(t.Columns); err != nil {
@@ -37,10 +37,15 @@ func csvCell(c Cell, digits int) string {
 	case KindInt:
 		return itoa(c.i)
 	case KindReal, KindProb:
-		if math.IsNaN(c.f) {
+		if c.null() {
 			return ""
 		}
 		return fixed(c.f, digits)
+	case KindInterval:
+		if c.null() {
+			return ""
+		}
+		return intervalText(c, digits)
 	case KindList:
 		return joinList(c.items)
 	}

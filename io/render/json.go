@@ -15,8 +15,10 @@ import (
 // Numbers are the shortest text that reads back exactly (so encoding/json
 // recovers every float64 bit for bit, except that -0 is written as 0). An
 // undefined number (NaN) is null, and so is an infinity, which JSON cannot
-// represent: a table holding ±Inf loses that value in JSON. A list is an
-// array of strings, [] when empty. Title and Notes are not written.
+// represent: a table holding ±Inf loses that value in JSON. An interval is
+// an array of its two bounds, or null when either bound is NaN (an infinite
+// bound alone is null inside the array). A list is an array of strings, []
+// when empty. Title and Notes are not written.
 func encodeJSON(w *bufio.Writer, t *Table) {
 	if len(t.Rows) == 0 {
 		w.WriteString("[]\n")
@@ -60,11 +62,17 @@ func writeJSONCell(w *bufio.Writer, c Cell) {
 	case KindInt:
 		w.WriteString(itoa(c.i))
 	case KindReal, KindProb:
-		if math.IsNaN(c.f) || math.IsInf(c.f, 0) {
+		writeJSONReal(w, c.f)
+	case KindInterval:
+		if c.null() {
 			w.WriteString("null")
-		} else {
-			w.WriteString(jsonNumber(c.f))
+			return
 		}
+		w.WriteString("[\n      ")
+		writeJSONReal(w, c.f)
+		w.WriteString(",\n      ")
+		writeJSONReal(w, c.hi)
+		w.WriteString("\n    ]")
 	case KindList:
 		if len(c.items) == 0 {
 			w.WriteString("[]")
@@ -82,6 +90,16 @@ func writeJSONCell(w *bufio.Writer, c Cell) {
 		w.WriteString("    ]")
 	default:
 		panic("render: cell of invalid kind " + c.kind.String()) // Encode checked the table
+	}
+}
+
+// writeJSONReal writes f as a JSON number, or null when f is NaN or
+// infinite.
+func writeJSONReal(w *bufio.Writer, f float64) {
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		w.WriteString("null")
+	} else {
+		w.WriteString(jsonNumber(f))
 	}
 }
 

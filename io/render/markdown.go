@@ -10,6 +10,11 @@ import (
 // mdNull is how Markdown shows an undefined number.
 const mdNull = "—"
 
+// mdProbDigits is the fewest decimals Markdown gives a p-value, so that
+// p < 0.001, the smallest threshold tables commonly report, stays visible
+// even in a table whose other numbers are rounded harder.
+const mdProbDigits = 3
+
 // encodeMarkdown writes t as a GitHub-flavoured pipe table: the title on a
 // line of its own, a blank line, the table, and the notes as a bulleted list
 // after another blank line. A column is right-aligned when every cell in it
@@ -92,16 +97,28 @@ func mdCell(c Cell, digits int) string {
 		return mdEscape(c.text)
 	case KindInt:
 		return itoa(c.i)
-	case KindReal, KindProb:
-		if math.IsNaN(c.f) {
+	case KindReal:
+		if c.null() {
 			return mdNull
 		}
-		if c.kind == KindProb && digits >= 0 {
-			if bound := math.Pow10(-digits); c.f >= 0 && c.f < bound {
-				return "< " + fixed(bound, digits)
-			}
-		}
 		return fixed(c.f, digits)
+	case KindProb:
+		if c.null() {
+			return mdNull
+		}
+		if digits < 0 {
+			return fixed(c.f, digits)
+		}
+		d := max(digits, mdProbDigits)
+		if bound := math.Pow10(-d); c.f >= 0 && c.f < bound {
+			return "< " + fixed(bound, d)
+		}
+		return fixed(c.f, d)
+	case KindInterval:
+		if c.null() {
+			return mdNull
+		}
+		return intervalText(c, digits)
 	case KindList:
 		items := make([]string, len(c.items))
 		for i, s := range c.items {

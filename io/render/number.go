@@ -29,6 +29,12 @@ func fixed(f float64, digits int) string {
 	return dropNegativeZero(s)
 }
 
+// intervalText formats an interval cell as "[lo, hi]", each bound as fixed
+// formats it. c must not be null.
+func intervalText(c Cell, digits int) string {
+	return "[" + fixed(c.f, digits) + ", " + fixed(c.hi, digits) + "]"
+}
+
 // dropNegativeZero removes the sign of a formatted number whose digits are
 // all zero ("-0", "-0.000", "-0e+00").
 func dropNegativeZero(s string) string {
@@ -63,4 +69,32 @@ func jsonNumber(f float64) string {
 		s = s[:n-2] + s[n-1:]
 	}
 	return s
+}
+
+// levelDigits is how many significant digits Percent keeps of 100·level.
+// Multiplying by 100 can leave an error in the last bit or two of a float64
+// (which holds 15–17 significant digits), as in 100 × 0.57 =
+// 56.99999999999999; 10 digits drop that noise and still keep any level a
+// person writes, such as 0.9999 or 0.99995, exactly.
+const levelDigits = 10
+
+// Percent returns a confidence level such as 0.95 as the percentage a column
+// header shows, without the percent sign: "95". It rounds 100·level to 10
+// significant digits and prints the result with no trailing zeros, in plain
+// decimal notation: 0.57 gives "57", 0.975 "97.5", 0.999 "99.9". NaN gives
+// "NaN" and infinities "Inf" and "-Inf"; Percent does not check that level
+// lies in (0, 1).
+func Percent(level float64) string {
+	if math.IsNaN(level) {
+		return "NaN"
+	}
+	pct := 100 * level
+	if math.IsInf(pct, 0) {
+		return fixed(pct, -1)
+	}
+	pct, err := strconv.ParseFloat(strconv.FormatFloat(pct, 'g', levelDigits, 64), 64)
+	if err != nil {
+		panic("render: reparse a formatted float: " + err.Error()) // FormatFloat's output always parses
+	}
+	return dropNegativeZero(strconv.FormatFloat(pct, 'f', -1, 64))
 }

@@ -34,20 +34,43 @@ func orchard() *Table {
 	}
 }
 
+// intervals is a small invented table of confidence intervals, rounded to
+// two decimals in Markdown: a bound that rounds to -0, an interval with one
+// undefined bound, p-values that keep three decimals regardless, and a
+// header that names the level with Percent.
+func intervals() *Table {
+	return &Table{
+		Title:   "Sensor agreement with intervals (invented data)",
+		Columns: []string{"pair", "rho", Percent(0.95) + "% CI", "p"},
+		Rows: [][]Cell{
+			{Text("a / b"), Real(0.8123), Interval(0.6391, 0.9102), Prob(0.00002)},
+			{Text("a / c"), Real(0.2641), Interval(-0.0004, 0.5), Prob(0.0861)},
+			{Text("b / c"), Real(-0.4127538), Interval(-0.6633, -0.0853), Prob(0.0213)},
+			{Text("c / d"), Real(math.NaN()), Interval(math.NaN(), 0.31), Prob(math.NaN())},
+		},
+		Notes: []string{"— marks an undefined value."},
+	}
+}
+
 func TestGolden(t *testing.T) {
 	for _, tc := range []struct {
+		table  func() *Table
 		format Format
 		file   string
 		digits int
 	}{
-		{Markdown, "orchard.md", 3},
-		{CSV, "orchard.csv", 3},
-		{CSV, "orchard_shortest.csv", -1},
-		{JSON, "orchard.json", 3},
+		{orchard, Markdown, "orchard.md", 3},
+		{orchard, CSV, "orchard.csv", 3},
+		{orchard, CSV, "orchard_shortest.csv", -1},
+		{orchard, JSON, "orchard.json", 3},
+		{intervals, Markdown, "intervals.md", 2},
+		{intervals, CSV, "intervals.csv", 2},
+		{intervals, CSV, "intervals_shortest.csv", -1},
+		{intervals, JSON, "intervals.json", 2},
 	} {
 		t.Run(tc.file, func(t *testing.T) {
 			var buf bytes.Buffer
-			if err := Encode(&buf, orchard(), tc.format, tc.digits); err != nil {
+			if err := Encode(&buf, tc.table(), tc.format, tc.digits); err != nil {
 				t.Fatal(err)
 			}
 			golden := filepath.Join("testdata", tc.file)
@@ -65,7 +88,7 @@ func TestGolden(t *testing.T) {
 			}
 			// Determinism contract: the same table gives the same bytes.
 			var again bytes.Buffer
-			if err := Encode(&again, orchard(), tc.format, tc.digits); err != nil {
+			if err := Encode(&again, tc.table(), tc.format, tc.digits); err != nil {
 				t.Fatal(err)
 			}
 			if !bytes.Equal(buf.Bytes(), again.Bytes()) {
@@ -160,6 +183,157 @@ func TestProbBound(t *testing.T) {
 	}
 	if got := csvCell(Prob(0.00004), 3); got != "0.000" {
 		t.Errorf("CSV Prob(0.00004) = %q, want 0.000", got)
+	}
+}
+
+func TestProbMinimumDigits(t *testing.T) {
+	// Markdown keeps at least three decimals for p-values, so p < 0.001
+	// stays visible in a table rounded to fewer; more than three are kept.
+	for _, tc := range []struct {
+		p      float64
+		digits int
+		want   string
+	}{
+		{0.0004, 0, "< 0.001"},
+		{0.5, 0, "0.500"},
+		{0.04, 0, "0.040"},
+		{1, 0, "1.000"},
+		{0.0123, 1, "0.012"},
+		{0.0004, 2, "< 0.001"},
+		{0.00004, 5, "0.00004"},
+		{0.000004, 5, "< 0.00001"},
+		{0.0123456, 6, "0.012346"},
+	} {
+		if got := mdCell(Prob(tc.p), tc.digits); got != tc.want {
+			t.Errorf("Markdown Prob(%g) with %d digits = %q, want %q", tc.p, tc.digits, got, tc.want)
+		}
+	}
+	// Reals and CSV follow digits as given.
+	if got := mdCell(Real(0.5), 0); got != "0" {
+		t.Errorf("Markdown Real(0.5) with 0 digits = %q, want 0 (half to even)", got)
+	}
+	if got := csvCell(Prob(0.04), 0); got != "0" {
+		t.Errorf("CSV Prob(0.04) with 0 digits = %q, want 0", got)
+	}
+}
+
+func TestInterval(t *testing.T) {
+	nan, negZero := math.NaN(), math.Copysign(0, -1)
+	for _, tc := range []struct {
+		lo, hi  float64
+		digits  int
+		md, csv string
+	}{
+		{0.25, 0.75, 3, "[0.250, 0.750]", "[0.250, 0.750]"},
+		{-0.6633, -0.0853, 2, "[-0.66, -0.09]", "[-0.66, -0.09]"},
+		{-0.0004, 0.5, 3, "[0.000, 0.500]", "[0.000, 0.500]"}, // no "-0.000"
+		{negZero, negZero, 0, "[0, 0]", "[0, 0]"},
+		{negZero, 1, -1, "[0, 1]", "[0, 1]"},
+		{-0.0004, 0.1, -1, "[-0.0004, 0.1]", "[-0.0004, 0.1]"},
+		{1.0 / 3, 2.0 / 3, -1, "[0.3333333333333333, 0.6666666666666666]", "[0.3333333333333333, 0.6666666666666666]"},
+		{-1, 1, 1, "[-1.0, 1.0]", "[-1.0, 1.0]"},
+		{math.Inf(-1), 0.5, 1, "[-Inf, 0.5]", "[-Inf, 0.5]"},
+		{nan, 0.5, 3, "—", ""},
+		{0.5, nan, 3, "—", ""},
+		{nan, nan, -1, "—", ""},
+	} {
+		c := Interval(tc.lo, tc.hi)
+		if c.Kind() != KindInterval {
+			t.Fatalf("Interval(%g, %g).Kind() = %v", tc.lo, tc.hi, c.Kind())
+		}
+		if got := mdCell(c, tc.digits); got != tc.md {
+			t.Errorf("Markdown Interval(%g, %g) with %d digits = %q, want %q", tc.lo, tc.hi, tc.digits, got, tc.md)
+		}
+		if got := csvCell(c, tc.digits); got != tc.csv {
+			t.Errorf("CSV Interval(%g, %g) with %d digits = %q, want %q", tc.lo, tc.hi, tc.digits, got, tc.csv)
+		}
+	}
+	if got := KindInterval.String(); got != "interval" {
+		t.Errorf("KindInterval.String() = %q", got)
+	}
+
+	// Markdown right-aligns an interval column, undefined cells included.
+	tab := &Table{Columns: []string{"ci"}, Rows: [][]Cell{{Interval(0.1, 0.2)}, {Interval(nan, 0.2)}}}
+	if got, want := encode(t, tab, Markdown, 1), "|         ci |\n| ---------: |\n| [0.1, 0.2] |\n|          — |\n"; got != want {
+		t.Errorf("Markdown:\ngot  %q\nwant %q", got, want)
+	}
+	// CSV quotes the field, which holds a comma.
+	if got, want := encode(t, tab, CSV, 1), "ci\n\"[0.1, 0.2]\"\n\n"; got != want {
+		t.Errorf("CSV: got %q, want %q", got, want)
+	}
+}
+
+func TestIntervalJSON(t *testing.T) {
+	// JSON holds the exact bounds as a two-element array, null when a bound
+	// is undefined; an infinite bound alone is null inside the array, as an
+	// infinite Real is.
+	tab := &Table{Columns: []string{"ci", "n"}, Rows: [][]Cell{
+		{Interval(1.0/3, 0.9102), Int(1)},
+		{Interval(math.Copysign(0, -1), 2.7e-7), Int(2)},
+		{Interval(math.NaN(), 0.5), Int(3)},
+		{Interval(0.5, math.NaN()), Int(4)},
+		{Interval(math.Inf(-1), 0.5), Int(5)},
+	}}
+	out := encode(t, tab, JSON, 1)
+	// The layout is json.MarshalIndent's with a two-space indent.
+	var compact, indented bytes.Buffer
+	if err := json.Compact(&compact, []byte(out)); err != nil {
+		t.Fatalf("invalid JSON: %v\n%s", err, out)
+	}
+	if err := json.Indent(&indented, compact.Bytes(), "", "  "); err != nil {
+		t.Fatal(err)
+	}
+	if indented.String()+"\n" != out {
+		t.Errorf("layout differs from json.Indent:\ngot:\n%s\nwant:\n%s", out, indented.String())
+	}
+	var got []struct {
+		CI []*float64 `json:"ci"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatal(err)
+	}
+	f := func(v float64) *float64 { return &v }
+	want := [][]*float64{{f(1.0 / 3), f(0.9102)}, {f(0), f(2.7e-7)}, nil, nil, {nil, f(0.5)}}
+	for i := range want {
+		if len(got[i].CI) != len(want[i]) {
+			t.Errorf("row %d: ci = %v, want %v", i+1, got[i].CI, want[i])
+			continue
+		}
+		for j := range want[i] {
+			g, w := got[i].CI[j], want[i][j]
+			if (g == nil) != (w == nil) || g != nil && *g != *w {
+				t.Errorf("row %d: ci[%d] = %v, want %v", i+1, j, g, w)
+			}
+		}
+	}
+	if !strings.Contains(out, `"ci": null`) {
+		t.Errorf("undefined interval not written as null:\n%s", out)
+	}
+}
+
+func TestPercent(t *testing.T) {
+	for _, tc := range []struct {
+		level float64
+		want  string
+	}{
+		{0.95, "95"},
+		{0.57, "57"}, // 100 × 0.57 = 56.99999999999999 in float64
+		{0.999, "99.9"},
+		{0.975, "97.5"},
+		{0.9, "90"},
+		{0.99, "99"},
+		{0.9999, "99.99"},
+		{0.99995, "99.995"},
+		{0.07, "7"}, // 7.000000000000001 in float64
+		{0.5, "50"},
+		{1e-9, "0.0000001"}, // plain decimals, never exponent form
+		{1, "100"},
+		{math.NaN(), "NaN"},
+		{math.Inf(1), "Inf"},
+	} {
+		if got := Percent(tc.level); got != tc.want {
+			t.Errorf("Percent(%v) = %q, want %q", tc.level, got, tc.want)
+		}
 	}
 }
 

@@ -55,10 +55,11 @@ func ParseFormat(name string) (Format, error) {
 
 // Encode writes t to w in format f.
 //
-// digits is the number of decimals for Real and Prob cells in Markdown and
-// CSV; a negative digits means the shortest text that reads back exactly
-// (strconv's 'g' format with precision -1). JSON always writes the shortest
-// exact numbers and ignores digits.
+// digits is the number of decimals for Real, Prob and Interval cells in
+// Markdown and CSV; a negative digits means the shortest text that reads
+// back exactly (strconv's 'g' format with precision -1). Markdown shows Prob
+// cells with at least three decimals (see Prob). JSON always writes the
+// shortest exact numbers and ignores digits.
 //
 // Encode checks the table first and writes nothing when a row has the wrong
 // number of cells or a cell is the zero Cell.
@@ -95,7 +96,7 @@ func (t *Table) check() error {
 			return fmt.Errorf("table %q: row %d has %d cells for %d columns", t.Title, r+1, len(row), len(t.Columns))
 		}
 		for c, cell := range row {
-			if cell.kind < KindText || cell.kind > KindList {
+			if !cell.kind.valid() {
 				return fmt.Errorf("table %q: row %d, column %q: cell of invalid kind %s", t.Title, r+1, t.Columns[c], cell.kind)
 			}
 		}
