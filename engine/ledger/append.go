@@ -8,24 +8,36 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"syscall"
 )
 
 // Append adds rec as the last line of the ledger at path and returns the
-// record as stored.
+// record as stored. It is Lock, Locked.Append and Unlock in one call, for a
+// caller that has nothing else to do under the lock.
 //
 // It first verifies the existing ledger and refuses to extend one that fails
 // (returning the *ChainError), so a break is never buried under new lines.
 // It fills Format (when empty), RunSHA256 and PrevSHA256, and replaces nil
-// Inputs, Steps and Outputs with empty lists. It then writes the existing
-// bytes plus the new line to a temporary file in the same folder, syncs it,
-// renames it over the ledger and syncs the folder: a crash leaves the old
-// ledger or the new one, never a torn line.
+// Inputs, Steps, Outputs and Tool.Modules with empty lists. It then writes
+// the existing bytes plus the new line to a temporary file in the same
+// folder, syncs it, renames it over the ledger and syncs the folder: a crash
+// leaves the old ledger or the new one, never a torn line.
 //
-// Two Appends to one ledger on one machine are serialized by an exclusive
-// flock(2) on "<path>.lock", held from the read to the rename; the lock file
-// stays in place. Locks on network file systems may not be honoured.
+// If the record is stored but releasing the lock fails, Append returns the
+// stored record together with the error.
 func Append(path string, rec Record) (Record, error) {
+	l, err := Lock(path)
+	if err != nil {
+		return Record{}, err
+	}
+	stored, err := l.Append(rec)
+	if uerr := l.Unlock(); uerr != nil && err == nil {
+		return stored, uerr
+	}
+	return stored, err
+}
+
+// appendRecord is Append for a caller that holds the ledger's lock.
+func appendRecord(path string, rec Record) (Record, error) {
 	if rec.Format == "" {
 		rec.Format = FormatV1
 	}
@@ -47,12 +59,6 @@ func Append(path string, rec Record) (Record, error) {
 	if rec.Settings != nil && !json.Valid(rec.Settings) {
 		return Record{}, fmt.Errorf("append to ledger %q: settings are not valid JSON", path)
 	}
-
-	unlock, err := lock(path + ".lock")
-	if err != nil {
-		return Record{}, fmt.Errorf("append to ledger %q: %w", path, err)
-	}
-	defer unlock()
 
 	old, err := os.ReadFile(path)
 	if err != nil && !errors.Is(err, fs.ErrNotExist) {
@@ -98,29 +104,6 @@ func encodeLine(rec *Record) ([]byte, error) {
 		return nil, fmt.Errorf("encode record: %w", err)
 	}
 	return buf.Bytes(), nil
-}
-
-// lock takes an exclusive flock on the file at path, creating it if needed,
-// and waits until it is granted. The returned function releases it.
-func lock(path string) (unlock func(), err error) {
-	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE, 0o644)
-	if err != nil {
-		return nil, fmt.Errorf("lock: %w", err)
-	}
-	for {
-		err = syscall.Flock(int(f.Fd()), syscall.LOCK_EX)
-		if err != syscall.EINTR {
-			break
-		}
-	}
-	if err != nil {
-		f.Close()
-		return nil, fmt.Errorf("lock %q: %w", path, err)
-	}
-	return func() {
-		syscall.Flock(int(f.Fd()), syscall.LOCK_UN)
-		f.Close()
-	}, nil
 }
 
 // replace writes data to a hidden temporary file beside path, syncs it, and

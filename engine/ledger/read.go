@@ -28,11 +28,17 @@ func (e *ChainError) Error() string {
 // previous line's bytes ("" on line 1). The file must end in a newline: a last
 // line without one is the trace of a write that did not finish.
 //
-// The first line that fails is reported as a *ChainError naming it; an edit to
-// a hashed field shows on its own line, an edit to anything else (a time, a
-// prev_sha256) on the line after it. A missing file is an empty ledger. Read
-// takes no lock: Append replaces the file by renaming, so Read sees either
-// the old ledger or the new one.
+// The first line that fails is reported as a *ChainError naming it. An edit
+// to a hashed field, to run_sha256 or to prev_sha256 shows on the edited line
+// itself: its content no longer hashes to its run_sha256, or its prev_sha256
+// no longer matches the line before. An edit to anything else — a time, white
+// space, the order of the keys — shows on the line after it, whose
+// prev_sha256 no longer matches; on the last line such an edit does not show.
+// A missing file is an empty ledger.
+//
+// Read takes no lock: Append replaces the file by renaming, so Read sees
+// either the old ledger or the new one. A run that must not see the ledger
+// change before it appends reads it with Locked.Records.
 func Read(path string) ([]Record, error) {
 	data, err := os.ReadFile(path)
 	if errors.Is(err, fs.ErrNotExist) {
@@ -88,7 +94,7 @@ func verify(path string, data []byte) ([]Record, []byte, error) {
 			if n == 1 {
 				return fail("prev_sha256 is %q in the first record, want \"\" (lines were removed from the start?)", rec.PrevSHA256)
 			}
-			reason := fmt.Sprintf("prev_sha256 is %q but line %d hashes to %q: line %d was changed, or lines were removed or reordered", rec.PrevSHA256, n-1, wantPrev, n-1)
+			reason := fmt.Sprintf("prev_sha256 is %q but line %d hashes to %q: line %d or this prev_sha256 was changed, or lines were removed or reordered", rec.PrevSHA256, n-1, wantPrev, n-1)
 			if bytes.HasSuffix(prev, []byte("\r")) {
 				reason += " (it ends in CR: were the line endings converted to CRLF?)"
 			}

@@ -15,7 +15,15 @@ import (
 const FormatV1 = "concordat-ledger/1"
 
 // A Record is one run of a recipe, stored as one JSON line. The JSON keys
-// and their order are fixed by the struct; add fields, never rename them.
+// and their order are fixed by the struct.
+//
+// The layout of a format never changes. Read refuses unknown fields, so a
+// build that does not know a field fails to verify a ledger that has it; and
+// run_sha256 covers every field above it, so a field added to the hashed
+// part would change the hash of records written before it existed. Adding,
+// removing or renaming a field (here or in the types a Record holds)
+// therefore needs a new Format version, which Read learns to accept beside
+// FormatV1, so that ledgers already committed keep verifying.
 type Record struct {
 	Format   string          `json:"format"`   // FormatV1; Append fills it when empty
 	Recipe   File            `json:"recipe"`   // the recipe file
@@ -55,13 +63,26 @@ type Input struct {
 	Rows   int64  `json:"rows"` // data rows read
 }
 
-// A Step is one test of the recipe: hashes (see Hash) of the paired data it
-// used and of the results it produced.
+// A Step is one test of the recipe, with hashes that the caller computes of
+// what went into it and what came out. The ledger stores them as given.
 type Step struct {
-	Test         string `json:"test"`
-	InputSHA256  string `json:"input_sha256"`
+	Test string `json:"test"` // the test's name in the recipe
+
+	// InputSHA256 is the caller's hash (see Hash) of the test's resolved
+	// settings, including the kinds, levels and missing-value tokens of the
+	// dataset columns it uses, together with the SHA-256 of each data file
+	// it read. Equal values mean the test saw the same data, read the same
+	// way.
+	InputSHA256 string `json:"input_sha256"`
+
+	// ResultSHA256 is the caller's hash of the result records the test
+	// produced, in a canonical encoding; it covers nothing about the tool,
+	// the times or the tables' layout. It is the value to compare when
+	// asking whether two runs, on other machines or builds, got the same
+	// numbers.
 	ResultSHA256 string `json:"result_sha256"`
-	Results      int    `json:"results"` // the number of result records
+
+	Results int `json:"results"` // the number of result records
 }
 
 // An Output is a table that a run wrote.
