@@ -10,6 +10,8 @@ import (
 
 	"github.com/hashicorp/hcl/v2"
 	"github.com/hashicorp/hcl/v2/hclsyntax"
+
+	"concordat/engine/ledger"
 )
 
 // Defaults and limits of the recipe language.
@@ -83,7 +85,7 @@ func ParseFiles(src []byte, filename string) (*Plan, map[string]*hcl.File, hcl.D
 
 	dir := filepath.Dir(filename)
 	name := strings.TrimSuffix(filepath.Base(filename), ".hcl")
-	d := &decoder{dir: dir, recipePath: filename, ledgerPath: ledgerPath(dir, name)}
+	d := &decoder{dir: dir, recipePath: filename, ledgerPath: ledger.PathFor(filename)}
 	plan := d.decodeRecipe(body)
 	diags = append(diags, d.diags...)
 	sortDiagnostics(diags)
@@ -96,10 +98,6 @@ func ParseFiles(src []byte, filename string) (*Plan, map[string]*hcl.File, hcl.D
 	plan.Source = src
 	plan.Files = files
 	return plan, files, diags
-}
-
-func ledgerPath(dir, name string) string {
-	return filepath.Join(dir, name+".ledger.jsonl")
 }
 
 // sortDiagnostics orders diagnostics by where their subject starts, so that

@@ -5,6 +5,7 @@ import (
 
 	"github.com/hashicorp/hcl/v2"
 
+	"concordat/engine/ledger"
 	"concordat/engine/stats"
 )
 
@@ -29,7 +30,7 @@ type Plan struct {
 
 // LedgerPath returns where the run ledger of this recipe lives:
 // <Dir>/<Name>.ledger.jsonl.
-func (p *Plan) LedgerPath() string { return ledgerPath(p.Dir, p.Name) }
+func (p *Plan) LedgerPath() string { return ledger.PathFor(p.Path) }
 
 // DataFormat is the file format of a dataset.
 type DataFormat string

@@ -661,8 +661,8 @@ func TestSuggestion(t *testing.T) {
 		{"zzzzzz", ""},
 		{"", ""},
 	} {
-		if got := nearest(tc.word, tieRules.words); got != tc.want {
-			t.Errorf("nearest(%q) = %q, want %q", tc.word, got, tc.want)
+		if got := Suggest(tc.word, tieRules.words); got != tc.want {
+			t.Errorf("Suggest(%q) = %q, want %q", tc.word, got, tc.want)
 		}
 	}
 }

@@ -72,17 +72,19 @@ func (v *vocab) laterDetail(w string) string {
 // didYouMean returns ` Did you mean "x"?` for the candidate nearest to w, or
 // "" when none is near enough to be a plausible slip.
 func didYouMean(w string, candidates []string) string {
-	if s := nearest(w, candidates); s != "" {
+	if s := Suggest(w, candidates); s != "" {
 		return " Did you mean " + quote(s) + "?"
 	}
 	return ""
 }
 
-// nearest returns the candidate with the smallest edit distance to w
-// (ignoring case), provided the distance is small for the word's length:
-// at most 2, or a third of the length for longer words. Ties go to the
-// candidate listed first.
-func nearest(w string, candidates []string) string {
+// Suggest returns the candidate that a misspelled name w most likely meant:
+// the one with the smallest edit distance to w (ignoring case), provided the
+// distance is small for the word's length: at most 2, or a third of the
+// length for longer words. Ties go to the candidate listed first; "" when
+// none is close. The engine uses it for column names too, so that every
+// "Did you mean" in concordat follows one rule.
+func Suggest(w string, candidates []string) string {
 	if w == "" || utf8.RuneCountInString(w) > 64 {
 		return ""
 	}
