@@ -6,11 +6,13 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
-	"math"
+	"slices"
 	"strconv"
 	"time"
 
 	"concordat/engine/ledger"
+	"concordat/engine/stats"
+	"concordat/io/dataset"
 	"concordat/io/render"
 	"concordat/recipe"
 )
@@ -39,9 +41,26 @@ func fullTable(title string, rows []Result) *render.Table {
 }
 
 // readableTable is the Markdown shape: the columns a reader of a paper
-// needs, with warnings numbered in notes under the table.
+// needs, with warnings numbered in notes under the table. The interval's
+// level heads its column when all rows share it, else it gets a column of
+// its own; the alternative gets a column when any row is one-sided, so a
+// one-sided p-value never passes for a two-sided one.
 func readableTable(title string, rows []Result) *render.Table {
-	t := &render.Table{Title: title, Columns: []string{"test", "x", "y", "group", "measure", "n", "estimate", "ci", "p", "p method", "notes"}}
+	level, sameLevel := commonLevel(rows)
+	oneSided := slices.ContainsFunc(rows, func(r Result) bool { return r.Alternative != stats.TwoSided.String() })
+
+	cols := []string{"test", "x", "y", "group", "measure", "n", "estimate"}
+	if sameLevel {
+		cols = append(cols, render.Percent(level)+"% CI")
+	} else {
+		cols = append(cols, "CI", "level")
+	}
+	if oneSided {
+		cols = append(cols, "alternative")
+	}
+	cols = append(cols, "p", "p method", "notes")
+	t := &render.Table{Title: title, Columns: cols}
+
 	noteIndex := map[string]int{}
 	for _, r := range rows {
 		var refs []string
@@ -54,12 +73,19 @@ func readableTable(title string, rows []Result) *render.Table {
 			}
 			refs = append(refs, strconv.Itoa(k))
 		}
-		t.Rows = append(t.Rows, []render.Cell{
+		row := []render.Cell{
 			render.Text(r.Test), render.Text(r.X), render.Text(r.Y), render.Text(r.Group),
 			render.Text(r.Measure), render.Int(int64(r.N)), render.Real(r.Estimate),
-			render.Text(""), // the interval, set by renderTable with the table's digits
-			render.Prob(r.PValue), render.Text(r.PMethod), render.List(refs),
-		})
+			render.Interval(r.CILow, r.CIHigh),
+		}
+		if !sameLevel {
+			row = append(row, render.Text(render.Percent(r.CILevel)+"%"))
+		}
+		if oneSided {
+			row = append(row, render.Text(r.Alternative))
+		}
+		row = append(row, render.Prob(r.PValue), render.Text(r.PMethod), render.List(refs))
+		t.Rows = append(t.Rows, row)
 	}
 	for i := range t.Notes {
 		t.Notes[i] = fmt.Sprintf("[%d] %s", i+1, t.Notes[i])
@@ -67,42 +93,12 @@ func readableTable(title string, rows []Result) *render.Table {
 	return t
 }
 
-// ciText formats an interval as "[lo, hi]" with digits decimals.
-func ciText(lo, hi float64, digits int) string {
-	if math.IsNaN(lo) || math.IsNaN(hi) {
-		return "—"
-	}
-	f := func(v float64) string {
-		s := strconv.FormatFloat(v, 'f', digits, 64)
-		if v == 0 || s == "-"+strconv.FormatFloat(0, 'f', digits, 64) {
-			s = strconv.FormatFloat(0, 'f', digits, 64)
-		}
-		return s
-	}
-	return "[" + f(lo) + ", " + f(hi) + "]"
-}
-
 func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, error) {
 	var buf bytes.Buffer
 	var err error
 	switch tb.Format {
 	case recipe.Markdown:
-		t := readableTable(plan.Title, rows)
-		const ciCol = 7
-		level, same := commonLevel(rows)
-		if same {
-			t.Columns[ciCol] = fmt.Sprintf("%g%% CI", 100*level)
-		} else {
-			t.Columns[ciCol] = "CI (level)"
-		}
-		for i, r := range rows {
-			text := ciText(r.CILow, r.CIHigh, tb.Digits)
-			if !same {
-				text += fmt.Sprintf(" (%g%%)", 100*r.CILevel)
-			}
-			t.Rows[i][ciCol] = render.Text(text)
-		}
-		err = render.Encode(&buf, t, render.Markdown, tb.Digits)
+		err = render.Encode(&buf, readableTable(plan.Title, rows), render.Markdown, tb.Digits)
 	case recipe.CSV:
 		// CSV and JSON are the machine-readable result record: they keep
 		// every digit (shortest round-trip) so no number is lost to
@@ -159,13 +155,13 @@ func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, result
 	return ledger.Step{Test: t.Name, InputSHA256: inHash, ResultSHA256: hex.EncodeToString(sum[:]), Results: len(results)}, nil
 }
 
-// commit writes the tables and appends the ledger record, or nothing.
+// commit writes the tables and appends the ledger record, or nothing. The
+// ledger's lock is held from the first look at the ledger to the append, so
+// two runs of one recipe cannot interleave their tables and records; if the
+// append fails after the tables moved into place, the earlier tables are
+// put back.
 func (c *Computation) commit(plan *recipe.Plan, opts Options, started time.Time) (*Report, error) {
 	ledgerPath := plan.LedgerPath()
-	// Refuse early, before any output moves, if the ledger is damaged.
-	if _, err := ledger.Read(ledgerPath); err != nil {
-		return nil, fmt.Errorf("ledger: %w", err)
-	}
 	settings, err := json.Marshal(plan.Settings())
 	if err != nil {
 		return nil, fmt.Errorf("encode settings: %w", err)
@@ -194,18 +190,40 @@ func (c *Computation) commit(plan *recipe.Plan, opts Options, started time.Time)
 		Inputs:   c.inputs,
 		Steps:    c.steps,
 		Outputs:  outputs,
-		Started:  started.UTC().Format(time.RFC3339Nano),
-		Finished: opts.now().UTC().Format(time.RFC3339Nano),
+		Started:  ledger.Timestamp(started),
+		Finished: ledger.Timestamp(opts.now()),
+	}
+
+	held, err := ledger.Lock(ledgerPath)
+	if err != nil {
+		return nil, fmt.Errorf("ledger: %w", err)
+	}
+	defer held.Unlock()
+	// Refuse before any table moves if the ledger is damaged.
+	if _, err := held.Records(); err != nil {
+		return nil, fmt.Errorf("ledger: %w", err)
 	}
 	if err := batch.Commit(); err != nil {
 		return nil, fmt.Errorf("move tables into place: %w", err)
 	}
-	stored, err := ledger.Append(ledgerPath, rec)
+	stored, err := appendRecord(held, rec)
 	if err != nil {
+		if uerr := batch.Undo(); uerr != nil {
+			return nil, fmt.Errorf("append ledger: %w (and restoring the earlier tables failed: %v)", err, uerr)
+		}
 		return nil, fmt.Errorf("append ledger: %w", err)
+	}
+	if err := batch.Release(); err != nil {
+		// The run is complete and recorded; a leftover backup is untidy,
+		// not wrong, so it is not a failure.
+		fmt.Fprintf(opts.stderr(), "concordat: warning: %v\n", err)
 	}
 	return &Report{Results: c.Results, Record: stored, Ledger: ledgerPath, Outputs: outputs}, nil
 }
+
+// appendRecord appends to the held ledger; tests replace it to make the
+// append fail after the tables have moved.
+var appendRecord = (*ledger.Locked).Append
 
 func version(o Options) string {
 	if o.Version == "" {
@@ -215,16 +233,32 @@ func version(o Options) string {
 }
 
 // testSettings is the resolved description of a test that its step hash
-// covers: everything that can change its numbers.
+// covers: everything that can change its numbers, including how each of its
+// columns is read (kind, levels in order) and which tokens mean missing.
 func testSettings(t *recipe.Test) any {
 	p := t.Pairing
 	measures := make([]string, len(t.Measures))
 	for i, m := range t.Measures {
 		measures[i] = m.String()
 	}
+	type column struct {
+		Name   string   `json:"name"`
+		Kind   string   `json:"kind"`
+		Levels []string `json:"levels"`
+	}
+	var columns []column
+	for _, name := range pairingColumns(p) {
+		c := valueSpec(p.Dataset, name)
+		columns = append(columns, column{c.Name, c.Kind.String(), c.Levels})
+	}
+	if p.By != "" {
+		columns = append(columns, column{p.By, dataset.Label.String(), nil})
+	}
 	return struct {
 		Name        string        `json:"name"`
 		Dataset     string        `json:"dataset"`
+		Columns     []column      `json:"columns"`
+		MissingAs   []string      `json:"missing_tokens"`
 		Pairs       []recipe.Pair `json:"pairs"`
 		Missing     string        `json:"missing"`
 		By          string        `json:"by"`
@@ -236,6 +270,7 @@ func testSettings(t *recipe.Test) any {
 		Level       float64       `json:"interval_level"`
 		Interval    string        `json:"interval_method"`
 		Adjust      string        `json:"adjust"`
-	}{t.Name, p.Dataset.Name, p.Pairs, p.Missing.String(), p.By, t.Ties.Rule.String(), t.Ties.MaxShare,
-		measures, t.Alternative.String(), t.PValue.String(), t.Interval.Level, t.Interval.Method.String(), t.Adjust}
+	}{t.Name, p.Dataset.Name, columns, p.Dataset.Missing, p.Pairs, p.Missing.String(), p.By,
+		t.Ties.Rule.String(), t.Ties.MaxShare, measures, t.Alternative.String(), t.PValue.String(),
+		t.Interval.Level, t.Interval.Method.String(), t.Adjust}
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/csv"
+	"errors"
 	"fmt"
 	"math"
 	"os"
@@ -17,6 +18,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/memory"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 
+	"concordat/engine/ledger"
 	"concordat/io/render"
 	"concordat/recipe"
 )
@@ -479,12 +481,107 @@ table "o" {
 		t.Fatal(err)
 	}
 	md := string(comp.tables[0].data)
-	for _, want := range []string{"CI (level)", "(95%)", "(90%)"} {
+	for _, want := range []string{"| level", " 95% ", " 90% "} {
 		if !strings.Contains(md, want) {
 			t.Errorf("markdown lacks %q:\n%s", want, md)
 		}
 	}
 	if strings.Contains(md, "95% CI") {
 		t.Errorf("markdown claims one level for all rows:\n%s", md)
+	}
+}
+
+// TestMarkdownShowsOneSidedAlternative: a one-sided p-value and its
+// half-open interval are labelled as such in the readable table.
+func TestMarkdownShowsOneSidedAlternative(t *testing.T) {
+	p := plan(t, `
+dataset "d" { path = "d.csv" }
+pairing "p" {
+  dataset = "d"
+  x = ["x"]
+  y = ["y"]
+}
+test "t" {
+  pairing     = "p"
+  alternative = "greater"
+}
+table "o" {
+  tests = ["t"]
+  path  = "o.md"
+}
+`, map[string]string{"d.csv": "x,y\n1,2\n2,1\n3,4\n4,3\n5,6\n6,5\n"})
+	comp, err := Compute(context.Background(), p, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	md := string(comp.tables[0].data)
+	if !strings.Contains(md, "| alternative") || !strings.Contains(md, "greater") || !strings.Contains(md, "1.000]") {
+		t.Errorf("markdown does not show the one-sided test:\n%s", md)
+	}
+}
+
+// TestFailedAppendRestoresTables: when the ledger append fails after the
+// tables moved into place, the earlier tables come back byte for byte, no
+// temporary or backup file is left, and the ledger keeps its one record.
+func TestFailedAppendRestoresTables(t *testing.T) {
+	p := plan(t, `
+dataset "d" { path = "d.csv" }
+pairing "p" {
+  dataset = "d"
+  x = ["x"]
+  y = ["y"]
+}
+test "t" { pairing = "p" }
+table "md" {
+  tests = ["t"]
+  path  = "out/t.md"
+}
+table "json" {
+  tests = ["t"]
+  path  = "out/t.json"
+}
+`, map[string]string{"d.csv": "x,y\n1,2\n2,1\n3,4\n4,3\n5,6\n6,5\n"})
+	if _, err := Run(context.Background(), p, Options{}); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(p.Dir, "out")
+	before := map[string][]byte{}
+	for _, name := range []string{"t.md", "t.json"} {
+		b, err := os.ReadFile(filepath.Join(out, name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		before[name] = b
+	}
+	ledgerBefore, err := os.ReadFile(p.LedgerPath())
+	if err != nil {
+		t.Fatal(err)
+	}
+
+	// New data would change both tables; then the append fails.
+	if err := os.WriteFile(filepath.Join(p.Dir, "d.csv"), []byte("x,y\n1,1\n2,2\n3,3\n4,5\n5,4\n6,6\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	defer func(f func(*ledger.Locked, ledger.Record) (ledger.Record, error)) { appendRecord = f }(appendRecord)
+	appendRecord = func(*ledger.Locked, ledger.Record) (ledger.Record, error) {
+		return ledger.Record{}, errors.New("disk full (simulated)")
+	}
+	if _, err := Run(context.Background(), p, Options{}); err == nil || !strings.Contains(err.Error(), "simulated") {
+		t.Fatalf("run error = %v, want the simulated append failure", err)
+	}
+	for name, want := range before {
+		got, err := os.ReadFile(filepath.Join(out, name))
+		if err != nil || !bytes.Equal(got, want) {
+			t.Errorf("%s changed after a failed append (err %v)", name, err)
+		}
+	}
+	entries, _ := os.ReadDir(out)
+	for _, e := range entries {
+		if strings.HasPrefix(e.Name(), ".") {
+			t.Errorf("left behind: %s", e.Name())
+		}
+	}
+	if got, _ := os.ReadFile(p.LedgerPath()); !bytes.Equal(got, ledgerBefore) {
+		t.Error("ledger changed after a failed append")
 	}
 }

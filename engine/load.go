@@ -7,7 +7,6 @@ import (
 	"os"
 	"strings"
 
-	"github.com/agext/levenshtein"
 	"github.com/hashicorp/hcl/v2"
 
 	"concordat/engine/ledger"
@@ -39,19 +38,30 @@ func Check(plan *recipe.Plan) hcl.Diagnostics {
 			diags = append(diags, &hcl.Diagnostic{
 				Severity: hcl.DiagError, Summary: "Cannot read dataset",
 				Detail: detail, Subject: ds.PathRange.Ptr(),
+				Extra: dataFault{},
 			})
 			continue
 		}
-		have := map[string]bool{}
+		have := map[string]int{}
 		for _, h := range header {
-			have[h] = true
+			have[h]++
 		}
 		unknown := func(name string, where hcl.Range, what string) {
-			if have[name] {
+			if have[name] > 1 {
+				diags = append(diags, &hcl.Diagnostic{
+					Severity: hcl.DiagError, Summary: "Ambiguous column",
+					Detail: fmt.Sprintf("The %s %q appears %d times in the header of %s, so it is not clear which one is meant. Give the columns distinct names in the data.",
+						what, name, have[name], ds.PathAsWritten),
+					Subject: where.Ptr(),
+					Extra:   dataFault{},
+				})
+				return
+			}
+			if have[name] == 1 {
 				return
 			}
 			detail := fmt.Sprintf("The %s %q is not a column of %s.", what, name, ds.PathAsWritten)
-			if s := nearest(name, header); s != "" {
+			if s := recipe.Suggest(name, header); s != "" {
 				detail += fmt.Sprintf(" Did you mean %q?", s)
 			}
 			detail += " Its columns are: " + quoteList(header) + "."
@@ -78,6 +88,27 @@ func Check(plan *recipe.Plan) hcl.Diagnostics {
 	return diags
 }
 
+// dataFault marks a diagnostic caused by the data (a file that cannot be
+// read, an ambiguous header) rather than by the recipe text alone: the run
+// failed on its input, so the exit code is 1, not 2.
+type dataFault struct{}
+
+// IsDataFault reports whether d was caused by the data rather than the
+// recipe alone.
+func IsDataFault(d *hcl.Diagnostic) bool {
+	_, ok := d.Extra.(dataFault)
+	return ok
+}
+
+func anyDataFault(diags hcl.Diagnostics) bool {
+	for _, d := range diags {
+		if d.Severity == hcl.DiagError && IsDataFault(d) {
+			return true
+		}
+	}
+	return false
+}
+
 // loadDatasets reads every dataset that a test uses, once, with only the
 // columns the plan needs, and checks the sha256 pins.
 func loadDatasets(ctx context.Context, plan *recipe.Plan) (map[string]*dataset.Table, []ledger.Input, error) {
@@ -94,6 +125,14 @@ func loadDatasets(ctx context.Context, plan *recipe.Plan) (map[string]*dataset.T
 			var ce *dataset.CellError
 			if errors.As(err, &ce) {
 				diags = append(diags, cellDiagnostic(plan, ds, ce))
+				continue
+			}
+			var col *dataset.ColumnError
+			if errors.As(err, &col) {
+				diags = append(diags, &hcl.Diagnostic{
+					Severity: hcl.DiagError, Summary: "Column cannot be read",
+					Detail: col.Error() + ".", Subject: columnRange(plan, ds, col.Column).Ptr(),
+				})
 				continue
 			}
 			return nil, nil, fmt.Errorf("dataset %q: %w", ds.Name, err)
@@ -125,7 +164,18 @@ func loadDatasets(ctx context.Context, plan *recipe.Plan) (map[string]*dataset.T
 func datasetSpec(plan *recipe.Plan, ds *recipe.Dataset) (dataset.Spec, bool) {
 	f, _ := dataset.ParseFormat(string(ds.Format)) // checked by Check
 	spec := dataset.Spec{Path: ds.Path, Format: f, Missing: ds.Missing}
-	seen := map[string]bool{}
+	type key struct {
+		name string
+		kind dataset.Kind
+	}
+	seen := map[key]bool{}
+	add := func(c dataset.ColumnSpec) {
+		k := key{c.Name, c.Kind}
+		if !seen[k] {
+			seen[k] = true
+			spec.Columns = append(spec.Columns, c)
+		}
+	}
 	used := false
 	for _, t := range plan.Tests {
 		p := t.Pairing
@@ -134,26 +184,26 @@ func datasetSpec(plan *recipe.Plan, ds *recipe.Dataset) (dataset.Spec, bool) {
 		}
 		used = true
 		for _, name := range pairingColumns(p) {
-			if seen[name] {
-				continue
-			}
-			seen[name] = true
-			c := dataset.ColumnSpec{Name: name, Kind: dataset.Numeric}
-			if lv, ok := ds.Levels[name]; ok {
-				c.Kind, c.Levels = dataset.Ordinal, lv
-			}
-			spec.Columns = append(spec.Columns, c)
+			add(valueSpec(ds, name))
 		}
 	}
+	// A column may also group another pairing: it is then read a second
+	// time, as labels.
 	for _, t := range plan.Tests {
-		p := t.Pairing
-		if p.Dataset != ds || p.By == "" || seen[p.By] {
-			continue
+		if p := t.Pairing; p.Dataset == ds && p.By != "" {
+			add(dataset.ColumnSpec{Name: p.By, Kind: dataset.Label})
 		}
-		seen[p.By] = true
-		spec.Columns = append(spec.Columns, dataset.ColumnSpec{Name: p.By, Kind: dataset.Label})
 	}
 	return spec, used
+}
+
+// valueSpec is how a variable is read: ordinal through its declared levels,
+// else as numbers.
+func valueSpec(ds *recipe.Dataset, name string) dataset.ColumnSpec {
+	if lv, ok := ds.Levels[name]; ok {
+		return dataset.ColumnSpec{Name: name, Kind: dataset.Ordinal, Levels: lv}
+	}
+	return dataset.ColumnSpec{Name: name, Kind: dataset.Numeric}
 }
 
 // cellDiagnostic turns a bad data cell into a diagnostic that points at the
@@ -171,15 +221,21 @@ func cellDiagnostic(plan *recipe.Plan, ds *recipe.Dataset, ce *dataset.CellError
 			return d
 		}
 	}
+	d.Subject = columnRange(plan, ds, ce.Column).Ptr()
+	return d
+}
+
+// columnRange is where the recipe names column of ds: the first pairing
+// that lists it, else the dataset block (a whole-row problem has no column).
+func columnRange(plan *recipe.Plan, ds *recipe.Dataset, column string) hcl.Range {
 	for _, p := range plan.Pairings {
 		if p.Dataset == ds {
-			if r, ok := p.ColumnRanges[ce.Column]; ok {
-				d.Subject = r.Ptr()
-				break
+			if r, ok := p.ColumnRanges[column]; ok {
+				return r
 			}
 		}
 	}
-	return d
+	return ds.DeclRange
 }
 
 func quoteList(names []string) string {
@@ -188,16 +244,4 @@ func quoteList(names []string) string {
 		q[i] = fmt.Sprintf("%q", n)
 	}
 	return strings.Join(q, ", ")
-}
-
-// nearest returns the candidate closest to name by edit distance when it is
-// close enough to be a likely typo, else "".
-func nearest(name string, candidates []string) string {
-	best, bestD := "", len(name)/2+2
-	for _, c := range candidates {
-		if d := levenshtein.Distance(strings.ToLower(name), strings.ToLower(c), nil); d < bestD {
-			best, bestD = c, d
-		}
-	}
-	return best
 }

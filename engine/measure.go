@@ -3,6 +3,7 @@ package engine
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"concordat/engine/stats"
 	"concordat/recipe"
@@ -22,6 +23,13 @@ type sample struct {
 // practice).
 const minPairs = 3
 
+// smallN is the sample size below which the asymptotic p-values of rho (t)
+// and tau (normal) are flagged: the exact null distributions are discrete
+// and far from their approximations there (common practice; e.g. at n = 4
+// the smallest attainable exact two-sided p of rho is 1/12, while the t
+// approximation gives 0 for rho = 1).
+const smallN = 10
+
 // measureSample computes every measure of test t on one sample, in the
 // order the recipe lists them.
 func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []Result {
@@ -33,13 +41,7 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 		shareX, shareY = stats.TieShare(s.x), stats.TieShare(s.y)
 	}
 	common := func() []string {
-		var w []string
-		if s.groupNote != "" {
-			w = append(w, s.groupNote)
-		}
-		if s.dropNote != "" {
-			w = append(w, s.dropNote)
-		}
+		w := commonNotes(s)
 		if n < minPairs {
 			w = append(w, fmt.Sprintf("n = %d is too few pairs: at least %d are needed, so the estimate is undefined", n, minPairs))
 			return w
@@ -53,13 +55,7 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 		return w
 	}
 
-	var rx, ry []float64 // ranks, computed once for the rank measures
-	ranks := func() {
-		if rx == nil {
-			rx = stats.Rank(s.x, t.Ties.Rule)
-			ry = stats.Rank(s.y, t.Ties.Rule)
-		}
-	}
+	var counts *stats.PairCounts // Kendall's pair counts, computed once
 	level := t.Interval.Level
 
 	for _, m := range t.Measures {
@@ -67,37 +63,43 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 			Test: t.Name, X: pair.X, Y: pair.Y, Group: group, Measure: m.String(),
 			N: n, NDropped: s.dropped, Alternative: t.Alternative.String(),
 			Estimate: math.NaN(), PValue: math.NaN(), CILow: math.NaN(), CIHigh: math.NaN(),
-			CILevel: level, PAdjusted: math.NaN(), AdjustMethod: "none",
+			CILevel: level, PAdjusted: math.NaN(), AdjustMethod: t.Adjust,
 			TiesX: shareX, TiesY: shareY,
 		}
 		r.Warnings = common()
 		switch m {
 		case stats.Spearman:
-			r.PMethod, r.CIMethod = "t", "bonett-wright"
+			r.PMethod, r.CIMethod = stats.PT.String(), "bonett-wright"
 		case stats.KendallB:
-			r.PMethod, r.CIMethod = "normal", "fieller"
+			r.PMethod, r.CIMethod = stats.PNormal.String(), "fieller"
 		case stats.PearsonR:
-			r.PMethod, r.CIMethod = "t", "fisher"
+			r.PMethod, r.CIMethod = stats.PT.String(), "fisher"
 		default:
 			panic(fmt.Sprintf("engine: measure %v has no kernel", m))
-		}
-		if m == stats.Spearman && n >= minPairs {
-			// Kendall's tau-b corrects for ties itself, and Pearson's r
-			// does not rank; the warning is actionable only for rho.
-			r.Warnings = append(r.Warnings, tieWarnings(t, pair, shareX, shareY)...)
 		}
 		if n >= minPairs {
 			switch m {
 			case stats.Spearman:
-				ranks()
-				r.Estimate = stats.Pearson(rx, ry)
+				r.Warnings = append(r.Warnings, tieWarnings(t, pair, shareX, shareY)...)
+				if t.Ties.Rule != stats.TieAverage {
+					r.Warnings = append(r.Warnings, fmt.Sprintf(
+						"ranks use the %q tie rule: with ties this is not Spearman's rho with midranks, and its p-value and interval assume average ranks",
+						t.Ties.Rule.String()))
+				}
+				r.Estimate = stats.SpearmanRho(s.x, s.y, t.Ties.Rule)
 				r.PValue = stats.CorrelationT(r.Estimate, n, t.Alternative)
 				r.CILow, r.CIHigh = stats.BonettWrightInterval(r.Estimate, n, level, t.Alternative)
 			case stats.KendallB:
-				ranks()
-				c := stats.CountPairs(rx, ry)
-				r.Estimate = c.TauB()
-				r.PValue = stats.KendallNormal(c, t.Alternative)
+				// Kendall's tau-b depends only on the order of the values,
+				// so it is computed on them directly: breaking ties by a
+				// rank rule (such as "first") would hide the very ties
+				// tau-b corrects for.
+				if counts == nil {
+					c := stats.CountPairs(s.x, s.y)
+					counts = &c
+				}
+				r.Estimate = counts.TauB()
+				r.PValue = stats.KendallNormal(*counts, t.Alternative)
 				r.CILow, r.CIHigh = stats.FiellerInterval(r.Estimate, n, level, t.Alternative)
 			case stats.PearsonR:
 				if hasInf(s.x) || hasInf(s.y) {
@@ -108,12 +110,18 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 					r.CILow, r.CIHigh = stats.FisherInterval(r.Estimate, n, level, t.Alternative)
 				}
 			}
-			if !math.IsNaN(r.Estimate) && math.IsNaN(r.CILow) && math.IsNaN(r.CIHigh) {
-				r.Warnings = append(r.Warnings, fmt.Sprintf("n = %d is too few for the %s interval (needs n ≥ %d)", n, r.CIMethod, intervalMinN(m)))
-			}
+			r.Warnings = append(r.Warnings, inferenceWarnings(m, r)...)
 		}
 		if math.IsNaN(r.Estimate) {
 			r.PValue, r.CILow, r.CIHigh = math.NaN(), math.NaN(), math.NaN()
+			if len(r.Warnings) == len(commonNotes(s)) {
+				// Every undefined value says why; this is the catch-all.
+				r.Warnings = append(r.Warnings, "the estimate is undefined for these data")
+			}
+		}
+		if t.Adjust == "none" {
+			// No family adjustment: the adjusted p-value is the p-value.
+			r.PAdjusted = r.PValue
 		}
 		if r.Warnings == nil {
 			r.Warnings = []string{}
@@ -121,6 +129,39 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 		out = append(out, r)
 	}
 	return out
+}
+
+// commonNotes are the notes every result of a sample carries whatever the
+// measure (group and deletion notes), so that the catch-all for undefined
+// estimates fires only when nothing else explains them.
+func commonNotes(s sample) []string {
+	var w []string
+	if s.groupNote != "" {
+		w = append(w, s.groupNote)
+	}
+	if s.dropNote != "" {
+		w = append(w, s.dropNote)
+	}
+	return w
+}
+
+// inferenceWarnings flags p-values and intervals that the asymptotic
+// methods cannot be trusted for.
+func inferenceWarnings(m stats.Measure, r Result) []string {
+	var w []string
+	if math.IsNaN(r.Estimate) {
+		return nil
+	}
+	if math.Abs(r.Estimate) == 1 {
+		w = append(w, "a perfect association in the sample: the interval collapses to a point and the p-value is the method's limit, not an exact probability")
+	}
+	if m != stats.PearsonR && r.N < smallN {
+		w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can be far from the exact one (exact p-values are not available in this version)", r.N, r.PMethod))
+	}
+	if math.IsNaN(r.CILow) && math.IsNaN(r.CIHigh) {
+		w = append(w, fmt.Sprintf("n = %d is too few for the %s interval (needs n ≥ %d)", r.N, r.CIMethod, intervalMinN(m)))
+	}
+	return w
 }
 
 // intervalMinN is the smallest n for which each interval's standard error is
@@ -132,15 +173,22 @@ func intervalMinN(m stats.Measure) int {
 	return 4
 }
 
+// tieWarnings flags columns with more tied values than the test's ties
+// block allows, suggesting Kendall's tau-b when the test does not already
+// report it.
 func tieWarnings(t *recipe.Test, pair recipe.Pair, sx, sy float64) []string {
 	var w []string
+	hasTauB := slices.Contains(t.Measures, stats.KendallB)
 	for _, side := range []struct {
 		name  string
 		share float64
 	}{{pair.X, sx}, {pair.Y, sy}} {
 		if side.share > t.Ties.MaxShare {
-			w = append(w, fmt.Sprintf("%.0f%% of %s values are tied (above max_share %g); Kendall's tau-b is often preferred when ties are this many",
-				100*side.share, side.name, t.Ties.MaxShare))
+			msg := fmt.Sprintf("%.0f%% of %s values are tied (above max_share %g)", 100*side.share, side.name, t.Ties.MaxShare)
+			if !hasTauB {
+				msg += "; Kendall's tau-b is often preferred when ties are this many"
+			}
+			w = append(w, msg)
 		}
 	}
 	return w

@@ -1,12 +1,16 @@
 package engine
 
 import (
+	"cmp"
 	"context"
 	"fmt"
+	"io"
 	"math"
+	"os"
 	"path/filepath"
 	"runtime"
 	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -24,6 +28,14 @@ type Options struct {
 	Jobs    int              // workers for the (test, pair, group) cells; ≤ 0 means GOMAXPROCS
 	Version string           // tool version written to the ledger; "" means "devel"
 	Now     func() time.Time // clock for the ledger's recorded (never hashed) times
+	Stderr  io.Writer        // where warnings about the run itself go; nil means os.Stderr
+}
+
+func (o Options) stderr() io.Writer {
+	if o.Stderr != nil {
+		return o.Stderr
+	}
+	return os.Stderr
 }
 
 func (o Options) jobs() int {
@@ -72,7 +84,7 @@ type Computation struct {
 // Compute loads the data and computes every result of plan, writing nothing.
 func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation, error) {
 	if diags := Check(plan); diags.HasErrors() {
-		return nil, &DiagnosticsError{Diags: diags}
+		return nil, &DiagnosticsError{Diags: diags, Data: anyDataFault(diags)}
 	}
 	tables, inputs, err := loadDatasets(ctx, plan)
 	if err != nil {
@@ -88,9 +100,23 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	}
 	var cells []*cell
 	samples := map[*cell]func() sample{}
+	groupsOf := map[*recipe.Pairing][]group{}
+	var diags hcl.Diagnostics
+	for _, p := range plan.Pairings {
+		tbl, ok := tables[p.Dataset.Name]
+		if !ok {
+			continue // no test uses it
+		}
+		g, d := groupRows(tbl, p)
+		groupsOf[p] = g
+		diags = append(diags, d...)
+	}
+	if diags.HasErrors() {
+		return nil, &DiagnosticsError{Diags: diags, Data: true}
+	}
 	for _, t := range plan.Tests {
 		tbl := tables[t.Pairing.Dataset.Name]
-		groups := groupRows(tbl, t.Pairing)
+		groups := groupsOf[t.Pairing]
 		for _, pair := range t.Pairing.Pairs {
 			for _, g := range groups {
 				c := &cell{test: t, pair: pair, group: g.name}
@@ -159,14 +185,16 @@ type group struct {
 }
 
 // groupRows returns "all" followed by one group per distinct label of the
-// pairing's `by` column, in sorted order. Rows whose label is missing belong
-// only to "all".
-func groupRows(t *dataset.Table, p *recipe.Pairing) []group {
+// pairing's `by` column: in numeric order when every label is a number, else
+// in text order. Rows whose label is missing belong only to "all". A label
+// spelled "all" would be indistinguishable from the whole sample in every
+// table, so it is an error that points at the `by` attribute.
+func groupRows(t *dataset.Table, p *recipe.Pairing) ([]group, hcl.Diagnostics) {
 	out := []group{{name: "all"}}
 	if p.By == "" {
-		return out
+		return out, nil
 	}
-	col := column(t, p.By)
+	col := labelColumn(t, p.By)
 	idx := map[string][]int{}
 	unlabelled := 0
 	for i, l := range col.Labels {
@@ -176,6 +204,15 @@ func groupRows(t *dataset.Table, p *recipe.Pairing) []group {
 		}
 		idx[l] = append(idx[l], i)
 	}
+	if rows, ok := idx["all"]; ok {
+		r := p.ColumnRanges[p.By]
+		return nil, hcl.Diagnostics{{
+			Severity: hcl.DiagError, Summary: "Group label clashes with the whole sample",
+			Detail: fmt.Sprintf("%d rows of %s have %s = \"all\", the name every table gives the whole sample. Rename that group in the data, or group by another column.",
+				len(rows), p.Dataset.PathAsWritten, p.By),
+			Subject: r.Ptr(),
+		}}
+	}
 	if unlabelled > 0 {
 		out[0].note = fmt.Sprintf("%s no %s value: counted in \"all\" only", plural(unlabelled, "row has", "rows have"), p.By)
 	}
@@ -183,22 +220,42 @@ func groupRows(t *dataset.Table, p *recipe.Pairing) []group {
 	for k := range idx {
 		names = append(names, k)
 	}
-	slices.Sort(names)
+	sortLabels(names)
 	for _, k := range names {
 		out = append(out, group{name: k, rows: idx[k]})
 	}
-	return out
+	return out, nil
+}
+
+// sortLabels orders group labels numerically when all of them are numbers
+// (so "2" comes before "10"), and as text otherwise.
+func sortLabels(names []string) {
+	nums := make(map[string]float64, len(names))
+	for _, k := range names {
+		v, err := strconv.ParseFloat(strings.TrimSpace(k), 64)
+		if err != nil || math.IsNaN(v) {
+			slices.Sort(names)
+			return
+		}
+		nums[k] = v
+	}
+	slices.SortFunc(names, func(a, b string) int {
+		if c := cmp.Compare(nums[a], nums[b]); c != 0 {
+			return c
+		}
+		return strings.Compare(a, b)
+	})
 }
 
 // pairUp returns the complete (x, y) observations of one group under the
 // pairing's missing rule, and what was dropped.
 func pairUp(t *dataset.Table, p *recipe.Pairing, pair recipe.Pair, rows []int) sample {
-	xs, ys := column(t, pair.X).Values, column(t, pair.Y).Values
+	xs, ys := valueColumn(t, pair.X).Values, valueColumn(t, pair.Y).Values
 	var others [][]float64
 	if p.Missing == recipe.Listwise {
 		for _, name := range pairingColumns(p) {
 			if name != pair.X && name != pair.Y {
-				others = append(others, column(t, name).Values)
+				others = append(others, valueColumn(t, name).Values)
 			}
 		}
 	}
@@ -275,13 +332,23 @@ func pairingColumns(p *recipe.Pairing) []string {
 	return out
 }
 
-func column(t *dataset.Table, name string) *dataset.Column {
-	for i := range t.Columns {
-		if t.Columns[i].Name == name {
-			return &t.Columns[i]
-		}
+// valueColumn returns the numeric or ordinal column name of t.
+func valueColumn(t *dataset.Table, name string) *dataset.Column {
+	if c := t.Column(name, dataset.Numeric); c != nil {
+		return c
 	}
-	panic(fmt.Sprintf("engine: column %q was not loaded", name))
+	if c := t.Column(name, dataset.Ordinal); c != nil {
+		return c
+	}
+	panic(fmt.Sprintf("engine: column %q was not loaded as values", name))
+}
+
+// labelColumn returns the grouping column name of t.
+func labelColumn(t *dataset.Table, name string) *dataset.Column {
+	if c := t.Column(name, dataset.Label); c != nil {
+		return c
+	}
+	panic(fmt.Sprintf("engine: column %q was not loaded as labels", name))
 }
 
 // relPath writes path relative to the recipe's folder with forward slashes,

@@ -119,7 +119,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 			code = max(code, exitUsage)
 			continue
 		}
-		rep, err := engine.Run(ctx, plan, engine.Options{Jobs: *jobs, Version: toolVersion()})
+		rep, err := engine.Run(ctx, plan, engine.Options{Jobs: *jobs, Version: toolVersion(), Stderr: stderr})
 		if err != nil {
 			code = max(code, reportError(stderr, path, plan, err))
 			continue
@@ -143,7 +143,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 		printDiags(stderr, path, files, diags)
 		if diags.HasErrors() {
 			fmt.Fprintf(stderr, "concordat: error: %s: %s\n", path, plural(errorCount(diags), "problem"))
-			code = max(code, exitUsage)
+			code = max(code, diagsExit(diags))
 			continue
 		}
 		if err := plan.Describe(stdout); err != nil {
@@ -172,6 +172,17 @@ func reportError(stderr io.Writer, path string, plan *recipe.Plan, err error) in
 	}
 	fmt.Fprintf(stderr, "concordat: error: %s: %v; nothing was written\n", path, err)
 	return exitFailed
+}
+
+// diagsExit is the exit code for diagnostics: 1 when the data could not be
+// read (a run-time failure), else 2 (the recipe is wrong).
+func diagsExit(diags hcl.Diagnostics) int {
+	for _, d := range diags {
+		if d.Severity == hcl.DiagError && engine.IsDataFault(d) {
+			return exitFailed
+		}
+	}
+	return exitUsage
 }
 
 // errorCount counts the errors among diags.

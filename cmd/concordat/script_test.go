@@ -1,11 +1,14 @@
 package main
 
 import (
+	"errors"
 	"flag"
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
 
 	"github.com/rogpeppe/go-internal/testscript"
@@ -37,7 +40,9 @@ func TestScripts(t *testing.T) {
 			return nil
 		},
 		Cmds: map[string]func(ts *testscript.TestScript, neg bool, args []string){
-			"ledger": cmdLedger,
+			"ledger":   cmdLedger,
+			"exits":    cmdExits,
+			"nohidden": cmdNoHidden,
 		},
 	})
 }
@@ -72,6 +77,47 @@ func cmdLedger(ts *testscript.TestScript, neg bool, args []string) {
 		a, b := recs[len(recs)-2], recs[len(recs)-1]
 		if a.RunSHA256 != b.RunSHA256 {
 			ts.Fatalf("run hashes differ: %s vs %s", a.RunSHA256, b.RunSHA256)
+		}
+	}
+}
+
+// cmdExits runs a program like exec and asserts its exit code:
+// "exits 2 concordat run bad.hcl". Its stdout and stderr can be matched
+// afterwards as after exec.
+func cmdExits(ts *testscript.TestScript, neg bool, args []string) {
+	if neg || len(args) < 2 {
+		ts.Fatalf("usage: exits CODE PROGRAM [ARGS...]")
+	}
+	want, err := strconv.Atoi(args[0])
+	if err != nil {
+		ts.Fatalf("bad exit code %q", args[0])
+	}
+	got := 0
+	if err := ts.Exec(args[1], args[2:]...); err != nil {
+		var ee *exec.ExitError
+		if !errors.As(err, &ee) {
+			ts.Fatalf("%v", err)
+		}
+		got = ee.ExitCode()
+	}
+	if got != want {
+		ts.Fatalf("%s exited with %d, want %d", args[1], got, want)
+	}
+}
+
+// cmdNoHidden asserts that a folder holds no hidden files: no temporary or
+// backup file of an atomic write was left behind. "nohidden DIR".
+func cmdNoHidden(ts *testscript.TestScript, neg bool, args []string) {
+	if neg || len(args) != 1 {
+		ts.Fatalf("usage: nohidden DIR")
+	}
+	entries, err := os.ReadDir(ts.MkAbs(args[0]))
+	if err != nil {
+		ts.Fatalf("%v", err)
+	}
+	for _, e := range entries {
+		if strings.HasPrefix(e.Name(), ".") {
+			ts.Fatalf("%s holds a hidden file %s", args[0], e.Name())
 		}
 	}
 }
