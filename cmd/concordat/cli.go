@@ -73,45 +73,61 @@ func toolVersion() string {
 	return "devel"
 }
 
-func newFlags(name string, stderr io.Writer, summary string) *pflag.FlagSet {
-	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
-	fs.SetOutput(stderr)
-	fs.Usage = func() {
-		fmt.Fprintf(stderr, "usage: concordat %s [flags] RECIPE...\n\n%s\n\nflags:\n", name, summary)
-		fs.PrintDefaults()
-	}
-	return fs
+// command is a sub-command's flag set and usage text.
+type command struct {
+	fs      *pflag.FlagSet
+	summary string
 }
 
-// parseFlags parses and returns the exit code to stop with, or -1 to go on.
-func parseFlags(fs *pflag.FlagSet, args []string, stderr io.Writer) int {
-	if err := fs.Parse(args); err != nil {
+func newCommand(name, summary string) *command {
+	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
+	fs.SetOutput(io.Discard) // usage is printed by parse, to the right stream
+	fs.Usage = func() {}
+	return &command{fs: fs, summary: summary}
+}
+
+func (c *command) usage(w io.Writer) {
+	fmt.Fprintf(w, "usage: concordat %s [flags] RECIPE...\n\n%s\n", c.fs.Name(), c.summary)
+	if !c.fs.HasFlags() {
+		return
+	}
+	fmt.Fprintf(w, "\nflags:\n")
+	c.fs.SetOutput(w)
+	c.fs.PrintDefaults()
+	c.fs.SetOutput(io.Discard)
+}
+
+// parse parses args and returns the exit code to stop with, or -1 to go on.
+// --help prints the usage to stdout; a usage error prints it to stderr.
+func (c *command) parse(args []string, stdout, stderr io.Writer) int {
+	if err := c.fs.Parse(args); err != nil {
 		if errors.Is(err, pflag.ErrHelp) {
+			c.usage(stdout)
 			return exitOK
 		}
 		fmt.Fprintf(stderr, "concordat: error: %v\n", err)
-		fs.Usage()
+		c.usage(stderr)
 		return exitUsage
 	}
-	if fs.NArg() == 0 {
-		fmt.Fprintf(stderr, "concordat: error: %s needs at least one recipe file\n", fs.Name())
-		fs.Usage()
+	if c.fs.NArg() == 0 {
+		fmt.Fprintf(stderr, "concordat: error: %s needs at least one recipe file\n", c.fs.Name())
+		c.usage(stderr)
 		return exitUsage
 	}
 	return -1
 }
 
 func cmdRun(args []string, stdout, stderr io.Writer) int {
-	fs := newFlags("run", stderr, "Compute every test of each recipe, write its tables and append one record to\nthe recipe's ledger (<recipe>.ledger.jsonl beside it). A failed run writes nothing.")
-	jobs := fs.IntP("jobs", "j", 0, "worker count (default: the number of CPUs); results do not depend on it")
-	if code := parseFlags(fs, args, stderr); code >= 0 {
+	cmd := newCommand("run", "Compute every test of each recipe, write its tables and append one record to\nthe recipe's ledger (<recipe>.ledger.jsonl beside it). A failed run writes nothing.")
+	jobs := cmd.fs.IntP("jobs", "j", 0, "worker count (default: the number of CPUs); results do not depend on it")
+	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 
 	code := exitOK
-	for _, path := range fs.Args() {
+	for _, path := range cmd.fs.Args() {
 		plan, files, diags := recipe.LoadFiles(path)
 		printDiags(stderr, path, files, diags) // errors, or warnings only
 		if diags.HasErrors() {
@@ -130,12 +146,12 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 }
 
 func cmdCheck(args []string, stdout, stderr io.Writer) int {
-	fs := newFlags("check", stderr, "Validate each recipe and the headers of its data files, and print the resolved\nplan with every default made explicit. Nothing is computed or written.")
-	if code := parseFlags(fs, args, stderr); code >= 0 {
+	cmd := newCommand("check", "Validate each recipe and the headers of its data files, and print the resolved\nplan with every default made explicit. Nothing is computed or written.")
+	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
 	code := exitOK
-	for _, path := range fs.Args() {
+	for _, path := range cmd.fs.Args() {
 		plan, files, diags := recipe.LoadFiles(path)
 		if !diags.HasErrors() {
 			diags = append(diags, engine.Check(plan)...)
