@@ -603,9 +603,12 @@ func (d *decoder) checkOutputs(plan *Plan) {
 		case t.Path == filepath.Clean(d.recipePath):
 			d.errorf(subject, &ctx, "Table would overwrite the recipe",
 				"Table %s writes %s, which is this recipe file.", quote(t.Name), quote(t.PathAsWritten))
-		case t.Path == d.ledgerPath:
+		case t.Path == filepath.Clean(d.ledgerPath):
 			d.errorf(subject, &ctx, "Table would overwrite the ledger",
 				"Table %s writes %s, which is this recipe's ledger.", quote(t.Name), quote(t.PathAsWritten))
+		case t.Path == filepath.Clean(d.ledgerPath+".lock"):
+			d.errorf(subject, &ctx, "Table would overwrite the ledger's lock",
+				"Table %s writes %s, the lock file that keeps two runs of this recipe from writing at once.", quote(t.Name), quote(t.PathAsWritten))
 		}
 		written[t.Path] = t
 	}

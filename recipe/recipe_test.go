@@ -512,10 +512,16 @@ table "d" {
   tests = ["t"]
   path  = "<test>.ledger.jsonl"
   format = "json"
+}
+table "e" {
+  tests = ["t"]
+  path  = "<test>.ledger.jsonl.lock"
+  format = "csv"
 }`, []wantDiag{
 			{18, 11, "Two tables write the same file", `which table "a" (at <test>.hcl:12:1) writes too`},
 			{22, 11, "Table would overwrite an input", `dataset "harvest"`},
 			{27, 11, "Table would overwrite the ledger", ""},
+			{32, 11, "Table would overwrite the ledger's lock", "two runs"},
 		}},
 		{"variables and functions", `title = upper("x")
 seed = var.seed`, []wantDiag{
