@@ -201,7 +201,7 @@ func textError(path string, comma rune, row, headerFields int, err error) error 
 	switch {
 	case errors.Is(pe.Err, csv.ErrFieldCount):
 		_, n := locateRow(path, comma, row)
-		e.Reason = fmt.Sprintf("has %d fields but the header has %d", n, headerFields)
+		e.Reason = fmt.Sprintf("has %s but the header has %d", fieldCount(n), headerFields)
 		if n > headerFields && comma == ',' {
 			e.Hint = "a field holding a comma must be quoted"
 		}
@@ -243,4 +243,12 @@ func locateRow(path string, comma rune, row int) (line, fields int) {
 		}
 	}
 	return 0, 0
+}
+
+// fieldCount says "1 field" or "n fields".
+func fieldCount(n int) string {
+	if n == 1 {
+		return "1 field"
+	}
+	return fmt.Sprintf("%d fields", n)
 }

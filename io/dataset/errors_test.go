@@ -101,7 +101,7 @@ func TestCellErrors(t *testing.T) {
 		{
 			name:  "ragged first row",
 			edits: map[int]string{1: "north"},
-			want:  `row 1 (line 2): has 1 fields but the header has 3`,
+			want:  `row 1 (line 2): has 1 field but the header has 3`,
 		},
 		{
 			name:  "stray quote",
