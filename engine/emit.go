@@ -2,6 +2,7 @@ package engine
 
 import (
 	"bytes"
+	"context"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
@@ -160,7 +161,7 @@ func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, result
 // two runs of one recipe cannot interleave their tables and records; if the
 // append fails after the tables moved into place, the earlier tables are
 // put back.
-func (c *Computation) commit(plan *recipe.Plan, opts Options, started time.Time) (*Report, error) {
+func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Options, started time.Time) (*Report, error) {
 	ledgerPath := plan.LedgerPath()
 	settings, err := json.Marshal(plan.Settings())
 	if err != nil {
@@ -199,19 +200,25 @@ func (c *Computation) commit(plan *recipe.Plan, opts Options, started time.Time)
 		return nil, fmt.Errorf("ledger: %w", err)
 	}
 	defer held.Unlock()
-	// Refuse before any table moves if the ledger is damaged.
+	// Refuse before any table moves if the ledger is damaged, and stop
+	// here if the run was interrupted: this is the last point at which
+	// nothing has been written.
 	if _, err := held.Records(); err != nil {
 		return nil, fmt.Errorf("ledger: %w", err)
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
 	}
 	if err := batch.Commit(); err != nil {
 		return nil, fmt.Errorf("move tables into place: %w", err)
 	}
 	stored, err := appendRecord(held, rec)
 	if err != nil {
+		err = fmt.Errorf("append ledger: %w", err)
 		if uerr := batch.Undo(); uerr != nil {
-			return nil, fmt.Errorf("append ledger: %w (and restoring the earlier tables failed: %v)", err, uerr)
+			return nil, &PartialWriteError{Err: err, Undo: uerr}
 		}
-		return nil, fmt.Errorf("append ledger: %w", err)
+		return nil, err
 	}
 	if err := batch.Release(); err != nil {
 		// The run is complete and recorded; a leftover backup is untidy,

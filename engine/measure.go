@@ -46,11 +46,12 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 			w = append(w, fmt.Sprintf("n = %d is too few pairs: at least %d are needed, so the estimate is undefined", n, minPairs))
 			return w
 		}
+		ds := t.Pairing.Dataset
 		if c, v := constant(s.x); c {
-			w = append(w, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.X, n, formatValue(v)))
+			w = append(w, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.X, n, valueText(ds, pair.X, v)))
 		}
 		if c, v := constant(s.y); c {
-			w = append(w, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.Y, n, formatValue(v)))
+			w = append(w, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.Y, n, valueText(ds, pair.Y, v)))
 		}
 		return w
 	}
@@ -80,8 +81,8 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 		if n >= minPairs {
 			switch m {
 			case stats.Spearman:
-				r.Warnings = append(r.Warnings, tieWarnings(t, pair, shareX, shareY)...)
-				if t.Ties.Rule != stats.TieAverage {
+				r.Warnings = append(r.Warnings, tieWarnings(t, pair, n, shareX, shareY)...)
+				if t.Ties.Rule != stats.TieAverage && (shareX > 0 || shareY > 0) {
 					r.Warnings = append(r.Warnings, fmt.Sprintf(
 						"ranks use the %q tie rule: with ties this is not Spearman's rho with midranks, and its p-value and interval assume average ranks",
 						t.Ties.Rule.String()))
@@ -110,7 +111,7 @@ func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []R
 					r.CILow, r.CIHigh = stats.FisherInterval(r.Estimate, n, level, t.Alternative)
 				}
 			}
-			r.Warnings = append(r.Warnings, inferenceWarnings(m, r)...)
+			r.Warnings = append(r.Warnings, inferenceWarnings(m, &r, shareX > 0 || shareY > 0)...)
 		}
 		if math.IsNaN(r.Estimate) {
 			r.PValue, r.CILow, r.CIHigh = math.NaN(), math.NaN(), math.NaN()
@@ -146,22 +147,57 @@ func commonNotes(s sample) []string {
 }
 
 // inferenceWarnings flags p-values and intervals that the asymptotic
-// methods cannot be trusted for.
-func inferenceWarnings(m stats.Measure, r Result) []string {
+// methods cannot be trusted for. A rank measure's asymptotic p-value that
+// falls below the smallest p-value any exact permutation test could give
+// at this n is withheld (set to NaN), because no exact analysis could
+// support it.
+func inferenceWarnings(m stats.Measure, r *Result, tied bool) []string {
 	var w []string
 	if math.IsNaN(r.Estimate) {
 		return nil
 	}
+	interval := !math.IsNaN(r.CILow) || !math.IsNaN(r.CIHigh)
 	if math.Abs(r.Estimate) == 1 {
-		w = append(w, "a perfect association in the sample: the interval collapses to a point and the p-value is the method's limit, not an exact probability")
+		msg := "a perfect association in the sample"
+		if interval {
+			msg += ": the interval collapses to a point"
+		}
+		if r.PMethod == stats.PT.String() {
+			msg += "; the t approximation's p-value is its limit, 0"
+		}
+		w = append(w, msg)
 	}
-	if m != stats.PearsonR && r.N < smallN {
-		w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can be far from the exact one (exact p-values are not available in this version)", r.N, r.PMethod))
+	if m != stats.PearsonR && r.N < smallN && !math.IsNaN(r.PValue) {
+		floor := exactFloor(r.N, r.Alternative == stats.TwoSided.String() && !tied)
+		if r.PValue < floor {
+			w = append(w, fmt.Sprintf("the %s approximation gives p = %.2g, below %.2g, the smallest exact p-value attainable with n = %d pairs: the p-value is withheld (exact p-values are not available in this version)",
+				r.PMethod, r.PValue, floor, r.N))
+			r.PValue = math.NaN()
+		} else {
+			w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can differ noticeably from the exact one (exact p-values are not available in this version)", r.N, r.PMethod))
+		}
 	}
-	if math.IsNaN(r.CILow) && math.IsNaN(r.CIHigh) {
+	if !interval {
 		w = append(w, fmt.Sprintf("n = %d is too few for the %s interval (needs n ≥ %d)", r.N, r.CIMethod, intervalMinN(m)))
 	}
 	return w
+}
+
+// exactFloor is the smallest p-value an exact permutation test of a rank
+// correlation can attain with n pairs: the observed order alone has
+// probability 1/n! under independence, and without ties its mirror image
+// attains the same |statistic|, so a two-sided p is at least 2/n! (the
+// permutation distribution of rank statistics; e.g. Hollander & Wolfe,
+// Nonparametric Statistical Methods, 1973, ch. 8).
+func exactFloor(n int, mirrored bool) float64 {
+	f := 1.0
+	for k := 2; k <= n; k++ {
+		f *= float64(k)
+	}
+	if mirrored {
+		return 2 / f
+	}
+	return 1 / f
 }
 
 // intervalMinN is the smallest n for which each interval's standard error is
@@ -176,7 +212,7 @@ func intervalMinN(m stats.Measure) int {
 // tieWarnings flags columns with more tied values than the test's ties
 // block allows, suggesting Kendall's tau-b when the test does not already
 // report it.
-func tieWarnings(t *recipe.Test, pair recipe.Pair, sx, sy float64) []string {
+func tieWarnings(t *recipe.Test, pair recipe.Pair, n int, sx, sy float64) []string {
 	var w []string
 	hasTauB := slices.Contains(t.Measures, stats.KendallB)
 	for _, side := range []struct {
@@ -184,7 +220,10 @@ func tieWarnings(t *recipe.Test, pair recipe.Pair, sx, sy float64) []string {
 		share float64
 	}{{pair.X, sx}, {pair.Y, sy}} {
 		if side.share > t.Ties.MaxShare {
-			msg := fmt.Sprintf("%.0f%% of %s values are tied (above max_share %g)", 100*side.share, side.name, t.Ties.MaxShare)
+			tied := int(math.Round(side.share * float64(n)))
+			// Round down so that a share just under 1 never reads 100%.
+			msg := fmt.Sprintf("%d of %d %s values (%.0f%%) equal another value (above max_share %g)",
+				tied, n, side.name, math.Floor(100*side.share), t.Ties.MaxShare)
 			if !hasTauB {
 				msg += "; Kendall's tau-b is often preferred when ties are this many"
 			}
@@ -215,6 +254,11 @@ func hasInf(v []float64) bool {
 	return false
 }
 
-func formatValue(v float64) string {
+// valueText shows a value as the data wrote it: an ordinal code as its
+// label, a number in shortest form.
+func valueText(ds *recipe.Dataset, column string, v float64) string {
+	if lv := ds.Levels[column]; v == math.Trunc(v) && v >= 1 && int(v) <= len(lv) {
+		return fmt.Sprintf("%q", lv[int(v)-1])
+	}
 	return fmt.Sprintf("%g", v)
 }

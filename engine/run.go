@@ -66,11 +66,16 @@ type Report struct {
 // back as a *DiagnosticsError pointing at the recipe.
 func Run(ctx context.Context, plan *recipe.Plan, opts Options) (*Report, error) {
 	started := opts.now()
+	// A damaged ledger would refuse the record at the end: say so before
+	// the computing, not after it.
+	if _, err := ledger.Read(plan.LedgerPath()); err != nil {
+		return nil, fmt.Errorf("ledger: %w", err)
+	}
 	comp, err := Compute(ctx, plan, opts)
 	if err != nil {
 		return nil, err
 	}
-	return comp.commit(plan, opts, started)
+	return comp.commit(ctx, plan, opts, started)
 }
 
 // Computation holds everything a run computed before anything is written.
@@ -368,6 +373,21 @@ type DiagnosticsError struct {
 }
 
 func (e *DiagnosticsError) Error() string { return e.Diags.Error() }
+
+// PartialWriteError is the one failure after which earlier outputs may not
+// be as they were: the ledger append failed after the tables moved into
+// place, and putting the earlier tables back failed too. Undo says what
+// could not be restored (and where the backups are).
+type PartialWriteError struct {
+	Err  error // why the run failed
+	Undo error // why the earlier tables could not all be restored
+}
+
+func (e *PartialWriteError) Error() string {
+	return fmt.Sprintf("%v; restoring the earlier tables failed: %v", e.Err, e.Undo)
+}
+
+func (e *PartialWriteError) Unwrap() error { return e.Err }
 
 // plural picks the singular or plural phrase for n and prefixes n.
 func plural(n int, one, many string) string {

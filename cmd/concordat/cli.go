@@ -10,6 +10,7 @@ import (
 	"os/signal"
 	"path/filepath"
 	"runtime/debug"
+	"syscall"
 
 	"github.com/hashicorp/hcl/v2"
 	"github.com/spf13/pflag"
@@ -123,11 +124,19 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	// The first Ctrl-C (or SIGTERM from a scheduler) cancels the run, which
+	// then writes nothing; once cancelled, the signals get their default
+	// behaviour back, so a second Ctrl-C ends the process at once.
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	context.AfterFunc(ctx, stop)
 
 	code := exitOK
 	for _, path := range cmd.fs.Args() {
+		if !recipeExists(path, stderr) {
+			code = max(code, exitUsage)
+			continue
+		}
 		plan, files, diags := recipe.LoadFiles(path)
 		printDiags(stderr, path, files, diags) // errors, or warnings only
 		if diags.HasErrors() {
@@ -152,6 +161,10 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	}
 	code := exitOK
 	for _, path := range cmd.fs.Args() {
+		if !recipeExists(path, stderr) {
+			code = max(code, exitUsage)
+			continue
+		}
 		plan, files, diags := recipe.LoadFiles(path)
 		if !diags.HasErrors() {
 			diags = append(diags, engine.Check(plan)...)
@@ -170,6 +183,24 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	return code
 }
 
+// recipeExists reports a recipe path that names no readable file in one
+// plain line rather than as a diagnostic without source.
+func recipeExists(path string, stderr io.Writer) bool {
+	info, err := os.Stat(path)
+	switch {
+	case err != nil && errors.Is(err, os.ErrNotExist):
+		fmt.Fprintf(stderr, "concordat: error: %s: no such recipe file\n", path)
+		return false
+	case err != nil:
+		fmt.Fprintf(stderr, "concordat: error: %v\n", err)
+		return false
+	case info.IsDir():
+		fmt.Fprintf(stderr, "concordat: error: %s is a folder; give the recipe file (for example %s)\n", path, filepath.Join(path, "recipe.hcl"))
+		return false
+	}
+	return true
+}
+
 // reportError prints a failed run and returns its exit code.
 func reportError(stderr io.Writer, path string, plan *recipe.Plan, err error) int {
 	var de *engine.DiagnosticsError
@@ -180,6 +211,11 @@ func reportError(stderr io.Writer, path string, plan *recipe.Plan, err error) in
 			return exitUsage
 		}
 		fmt.Fprintf(stderr, "concordat: error: %s: run failed; nothing was written\n", path)
+		return exitFailed
+	}
+	var pw *engine.PartialWriteError
+	if errors.As(err, &pw) {
+		fmt.Fprintf(stderr, "concordat: error: %s: %v\nconcordat: error: some tables may hold this run's output while the ledger does not record it; restore them from version control or rerun\n", path, err)
 		return exitFailed
 	}
 	if errors.Is(err, context.Canceled) {

@@ -6,8 +6,10 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strconv"
 )
 
 // Append adds rec as the last line of the ledger at path and returns the
@@ -20,7 +22,15 @@ import (
 // Inputs, Steps, Outputs and Tool.Modules with empty lists. It then writes
 // the existing bytes plus the new line to a temporary file in the same
 // folder, syncs it, renames it over the ledger and syncs the folder: a crash
-// leaves the old ledger or the new one, never a torn line.
+// leaves the old ledger or the new one, never a torn line. A new ledger gets
+// the permissions 0666 less the umask, as from os.Create; a ledger that
+// exists keeps its permissions.
+//
+// Once the rename has succeeded the record is stored, and Append reports
+// success: the folder sync after it is best-effort durability, and its
+// failure is not returned (a caller that took it for a failed append would
+// undo outputs that the ledger now records). On Windows the folder is not
+// synced at all, because it cannot be.
 //
 // If the record is stored but releasing the lock fails, Append returns the
 // stored record together with the error.
@@ -106,26 +116,24 @@ func encodeLine(rec *Record) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// replace writes data to a hidden temporary file beside path, syncs it, and
-// renames it over path, keeping path's permissions when it exists (0644
-// otherwise); then it syncs the folder so the rename survives a crash.
+// replace writes data to a new hidden temporary file beside path, syncs
+// it, and renames it over path; then it syncs the folder, best-effort, so
+// the rename survives a crash. The new file keeps path's permissions when
+// path exists and otherwise has 0666 less the umask. An error means path
+// was not replaced.
 func replace(path string, data []byte) error {
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
 	}
-	mode := fs.FileMode(0o644)
-	if info, err := os.Stat(path); err == nil {
-		mode = info.Mode().Perm()
-	}
-	f, err := os.CreateTemp(dir, "."+base+".tmp-*")
+	f, err := createTemp(dir, "."+base+".tmp-")
 	if err != nil {
 		return err
 	}
 	temp := f.Name()
 	_, err = f.Write(data)
-	if err == nil {
-		err = f.Chmod(mode)
+	if info, serr := os.Stat(path); err == nil && serr == nil {
+		err = f.Chmod(info.Mode().Perm())
 	}
 	if err == nil {
 		err = f.Sync()
@@ -140,13 +148,30 @@ func replace(path string, data []byte) error {
 		os.Remove(temp)
 		return err
 	}
-	d, err := os.Open(dir)
-	if err != nil {
-		return err
+	// The ledger is replaced. A failed folder sync risks only losing the
+	// rename in a crash, and cannot be taken back by failing now.
+	_ = syncFolder(dir)
+	return nil
+}
+
+// syncFolder is syncDir; tests replace it to make folder syncs fail.
+var syncFolder = syncDir
+
+// createTemp creates a new file in dir named prefix followed by a random
+// number, for writing, with the permissions 0666 less the umask. Unlike
+// os.CreateTemp, which always uses 0600, it lets the umask decide, as
+// os.Create does.
+func createTemp(dir, prefix string) (*os.File, error) {
+	// Like os.CreateTemp, try random names until one is free; 10000 tries
+	// is os.CreateTemp's own limit.
+	var err error
+	for range 10000 {
+		name := filepath.Join(dir, prefix+strconv.FormatUint(uint64(rand.Uint32()), 10))
+		var f *os.File
+		f, err = os.OpenFile(name, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666)
+		if !errors.Is(err, fs.ErrExist) {
+			return f, err
+		}
 	}
-	err = d.Sync()
-	if cerr := d.Close(); err == nil {
-		err = cerr
-	}
-	return err
+	return nil, fmt.Errorf("create temporary file in %q: %w", dir, err)
 }

@@ -50,26 +50,29 @@
 // Locked.Records to verify the ledger, then move the tables into place, then
 // Locked.Append (or, if that fails, put the old tables back), then Unlock. Two
 // runs of one recipe, in one process or in two, then cannot interleave their
-// table writes and ledger lines. Append does Lock, Locked.Append and Unlock
-// for a caller that needs nothing else under the lock. Read takes no lock:
-// Append replaces the file by renaming, so Read sees either the old ledger or
-// the new one.
+// table writes and ledger lines. LockContext is Lock for a caller that must
+// be able to stop waiting (Ctrl-C) and tell the user that it waits. Append
+// does Lock, Locked.Append and Unlock for a caller that needs nothing else
+// under the lock. Read takes no lock: Append replaces the file by renaming,
+// so Read sees either the old ledger or the new one.
 //
 // The lock is an advisory lock on a separate file, "<ledger>.lock", which is
 // created on first use and left in place; it is not part of the record and
 // can be ignored in git. Do not delete it while a run may hold it: the next
-// run would lock a new file and not wait. Only Lock honours the lock; a
+// run would lock a new file and not wait. Only Lock and LockContext honour the lock; a
 // program that writes the ledger without it is not stopped. The lock is
 // released when its holder unlocks, exits or dies, so a crash leaves no stale
 // lock behind.
 //
 // On Unix systems other than AIX the lock is flock(2); on Windows it is
 // LockFileEx with LOCKFILE_EXCLUSIVE_LOCK. Both belong to the open file, so
-// they exclude two holders in one process as well as in two. Locks on
-// network file systems may not be honoured. On other platforms (AIX, Plan 9,
-// js and wasip1) Lock, and so Append, fails with an error wrapping
-// errors.ErrUnsupported. A lock file created with O_EXCL would work there
-// but would outlive a crashed run and block every later one until someone
-// deleted it by hand, and it could not share its name with the lock file
-// that the other platforms leave in place.
+// they exclude two holders in one process as well as in two. Each is tried
+// without blocking (LOCK_NB, LOCKFILE_FAIL_IMMEDIATELY) and tried again
+// after a short pause while another holder has it, so that a wait can be
+// cancelled. Locks on network file systems may not be honoured. On other
+// platforms (AIX, Plan 9, js and wasip1) Lock, LockContext and Append fail
+// with an error wrapping errors.ErrUnsupported. A lock file created with
+// O_EXCL would work there but would outlive a crashed run and block every
+// later one until someone deleted it by hand, and it could not share its
+// name with the lock file that the other platforms leave in place.
 package ledger

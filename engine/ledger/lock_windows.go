@@ -3,6 +3,7 @@
 package ledger
 
 import (
+	"errors"
 	"os"
 
 	"golang.org/x/sys/windows"
@@ -13,16 +14,24 @@ import (
 // file's size (it stays empty).
 const allBytes = ^uint32(0)
 
-// lockFile waits for an exclusive LockFileEx lock on f. Without
-// LOCKFILE_FAIL_IMMEDIATELY, LockFileEx on a handle opened for synchronous
-// I/O (as os.OpenFile opens it) returns only once the lock is granted. The
-// lock belongs to the handle, so two Locks in one process exclude each other.
-func lockFile(f *os.File) error {
+// tryLockFile tries once to take an exclusive LockFileEx lock on f,
+// without waiting (LOCKFILE_FAIL_IMMEDIATELY): it reports false, and no
+// error, when another holder has it. The lock belongs to the handle, so two
+// Locks in one process exclude each other.
+func tryLockFile(f *os.File) (bool, error) {
 	h := windows.Handle(f.Fd())
-	return windows.LockFileEx(h, windows.LOCKFILE_EXCLUSIVE_LOCK, 0, allBytes, allBytes, new(windows.Overlapped))
+	flags := uint32(windows.LOCKFILE_EXCLUSIVE_LOCK | windows.LOCKFILE_FAIL_IMMEDIATELY)
+	err := windows.LockFileEx(h, flags, 0, allBytes, allBytes, new(windows.Overlapped))
+	switch {
+	case err == nil:
+		return true, nil
+	case errors.Is(err, windows.ERROR_LOCK_VIOLATION):
+		return false, nil
+	}
+	return false, err
 }
 
-// unlockFile releases the range locked by lockFile.
+// unlockFile releases the range locked by tryLockFile.
 func unlockFile(f *os.File) error {
 	h := windows.Handle(f.Fd())
 	return windows.UnlockFileEx(h, 0, allBytes, allBytes, new(windows.Overlapped))

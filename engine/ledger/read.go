@@ -17,9 +17,13 @@ type ChainError struct {
 	Reason string
 }
 
-// Error returns the message, naming the file and the line.
+// Error returns the message, naming the file and the line, and the way
+// forward: a ledger that fails verification is not extended, so it must be
+// restored from version control, or moved aside so that the next run starts
+// a new one.
 func (e *ChainError) Error() string {
-	return fmt.Sprintf("verify ledger %q: line %d: %s", e.Path, e.Line, e.Reason)
+	return fmt.Sprintf("verify ledger %q: line %d: %s; restore the ledger from version control (git checkout -- %s) or move it aside to start a new one",
+		e.Path, e.Line, e.Reason, e.Path)
 }
 
 // Read parses the ledger at path and verifies it. Every line must be one
