@@ -59,10 +59,10 @@
 // The lock is an advisory lock on a separate file, "<ledger>.lock", which is
 // created on first use and left in place; it is not part of the record and
 // can be ignored in git. Do not delete it while a run may hold it: the next
-// run would lock a new file and not wait. Only Lock and LockContext honour the lock; a
-// program that writes the ledger without it is not stopped. The lock is
-// released when its holder unlocks, exits or dies, so a crash leaves no stale
-// lock behind.
+// run would lock a new file and not wait. Only Lock and LockContext honour
+// the lock; a program that writes the ledger without it is not stopped. The
+// lock is released when its holder unlocks, exits or dies, so a crash leaves
+// no stale lock behind.
 //
 // On Unix systems other than AIX the lock is flock(2); on Windows it is
 // LockFileEx with LOCKFILE_EXCLUSIVE_LOCK. Both belong to the open file, so

@@ -77,6 +77,10 @@ func wantChainError(t *testing.T, err error, line int) {
 	if !strings.Contains(err.Error(), fmt.Sprintf("line %d", line)) {
 		t.Errorf("message %q does not name line %d", err, line)
 	}
+	// The message says what to do about it.
+	if !strings.HasSuffix(err.Error(), "; restore the ledger from version control (git checkout -- "+ce.Path+") or move it aside to start a new one") {
+		t.Errorf("message %q does not end with the way forward", err)
+	}
 }
 
 func TestAppendRead(t *testing.T) {
@@ -441,5 +445,24 @@ func TestTimestamp(t *testing.T) {
 	at := time.Date(2026, 12, 2, 10, 4, 5, 250_000_000, time.FixedZone("CET", 3600))
 	if got, want := Timestamp(at), "2026-12-02T09:04:05.25Z"; got != want {
 		t.Errorf("Timestamp = %q, want %q", got, want)
+	}
+}
+
+func TestAppendFolderSyncFailure(t *testing.T) {
+	// Once the new ledger is renamed into place the record is stored: a
+	// folder sync that fails after it is not reported as a failed append.
+	syncFolder = func(string) error { return errors.New("sync failed") }
+	t.Cleanup(func() { syncFolder = syncDir })
+	path := filepath.Join(t.TempDir(), "orchard.ledger.jsonl")
+	stored, err := Append(path, sample(0))
+	if err != nil {
+		t.Fatalf("Append with a failing folder sync: %v", err)
+	}
+	recs, err := Read(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(recs) != 1 || recs[0].RunSHA256 != stored.RunSHA256 || stored.RunSHA256 == "" {
+		t.Errorf("Append returned run_sha256 %q; the ledger holds %d records", stored.RunSHA256, len(recs))
 	}
 }

@@ -2,11 +2,13 @@ package ledger
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"os"
 	"path/filepath"
 	"sync"
+	"sync/atomic"
 	"testing"
 	"time"
 )
@@ -215,5 +217,134 @@ func TestConcurrentLocked(t *testing.T) {
 	}
 	if len(recs) != runs {
 		t.Errorf("%d records, want %d", len(recs), runs)
+	}
+}
+
+// TestLockContextCancel cancels a wait for a held lock: LockContext reports
+// that it waits, once, and returns context.Canceled as soon as it is
+// cancelled, not at its next poll or later.
+func TestLockContextCancel(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "orchard.ledger.jsonl")
+	mustLock(t, path)
+
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	var calls atomic.Int32
+	waiting := make(chan struct{})
+	done := make(chan error, 1)
+	go func() {
+		l, err := LockContext(ctx, path, func() {
+			if calls.Add(1) == 1 {
+				close(waiting)
+			}
+		})
+		if err == nil {
+			l.Unlock()
+		}
+		done <- err
+	}()
+	select {
+	case <-waiting:
+	case err := <-done:
+		t.Fatalf("LockContext returned %v while the lock was held", err)
+	case <-time.After(30 * time.Second):
+		t.Fatal("waiting not called within 30s while the lock was held")
+	}
+	time.Sleep(300 * time.Millisecond) // let it poll a few times, up to the longest interval
+	cancel()
+	// It watches ctx.Done() between polls, so it returns at once; 5s is
+	// slack for a loaded machine under -race.
+	select {
+	case err := <-done:
+		if !errors.Is(err, context.Canceled) {
+			t.Errorf("LockContext = %v, want context.Canceled", err)
+		}
+	case <-time.After(5 * time.Second):
+		t.Fatal("LockContext still waiting 5s after the cancel")
+	}
+	if n := calls.Load(); n != 1 {
+		t.Errorf("waiting called %d times, want once", n)
+	}
+}
+
+func TestLockContextCancelled(t *testing.T) {
+	// A context that is already done is reported without taking the lock.
+	path := filepath.Join(t.TempDir(), "orchard.ledger.jsonl")
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if l, err := LockContext(ctx, path, nil); !errors.Is(err, context.Canceled) {
+		if err == nil {
+			l.Unlock()
+		}
+		t.Errorf("LockContext with a cancelled context = %v, want context.Canceled", err)
+	}
+}
+
+func TestLockContextFree(t *testing.T) {
+	// A free lock is taken at the first try, without a word.
+	path := filepath.Join(t.TempDir(), "orchard.ledger.jsonl")
+	l, err := LockContext(context.Background(), path, func() { t.Error("waiting called for a free lock") })
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := l.Unlock(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestLockContextWaits holds the lock while LockContext waits for it, then
+// unlocks: the waiter takes the lock and sees the holder's record.
+func TestLockContextWaits(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "orchard.ledger.jsonl")
+	first := mustLock(t, path)
+
+	var calls atomic.Int32
+	waiting := make(chan struct{})
+	type result struct {
+		records int
+		err     error
+	}
+	done := make(chan result, 1)
+	go func() {
+		l, err := LockContext(context.Background(), path, func() {
+			if calls.Add(1) == 1 {
+				close(waiting)
+			}
+		})
+		if err != nil {
+			done <- result{err: err}
+			return
+		}
+		defer l.Unlock()
+		recs, err := l.Records()
+		done <- result{len(recs), err}
+	}()
+
+	select {
+	case <-waiting:
+	case r := <-done:
+		t.Fatalf("LockContext returned (%d records, %v) while the lock was held", r.records, r.err)
+	case <-time.After(30 * time.Second):
+		t.Fatal("waiting not called within 30s while the lock was held")
+	}
+	if _, err := first.Append(sample(0)); err != nil {
+		t.Fatal(err)
+	}
+	if err := first.Unlock(); err != nil {
+		t.Fatal(err)
+	}
+	select {
+	case r := <-done:
+		if r.err != nil {
+			t.Fatal(r.err)
+		}
+		if r.records != 1 {
+			t.Errorf("waiter saw %d records, want the holder's 1", r.records)
+		}
+	case <-time.After(30 * time.Second):
+		t.Fatal("LockContext still waiting 30s after Unlock")
+	}
+	if n := calls.Load(); n != 1 {
+		t.Errorf("waiting called %d times, want once", n)
 	}
 }

@@ -98,13 +98,6 @@ func TestBatchCommit(t *testing.T) {
 	if got := readFile(t, nested); got != "a,b\n1,2\n" {
 		t.Errorf("after Commit, %s = %q", nested, got)
 	}
-	info, err := os.Stat(nested)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if info.Mode().Perm() != 0o644 {
-		t.Errorf("mode %v, want 0644", info.Mode().Perm())
-	}
 	// Until Release or Undo, the replaced file is kept as a hidden backup
 	// beside it, and only that: the new file needs none.
 	hidden := hiddenFiles(t, dir)
@@ -146,12 +139,17 @@ func TestBatchCommit(t *testing.T) {
 
 func TestBatchAbortAfterCommit(t *testing.T) {
 	// A deferred Abort after a Commit that was neither released nor undone
-	// keeps the new outputs and deletes the backups, as Release does.
+	// (the run returned early or panicked) undoes the Commit: the previous
+	// outputs come back, new files and the folders made for them go.
 	dir := t.TempDir()
 	dest := filepath.Join(dir, "t.md")
 	writeFile(t, dest, "old\n")
+	fresh := filepath.Join(dir, "out", "deep", "u.csv")
 	var b Batch
 	if err := b.Add(dest, []byte("new\n")); err != nil {
+		t.Fatal(err)
+	}
+	if err := b.Add(fresh, []byte("a\n")); err != nil {
 		t.Fatal(err)
 	}
 	if err := b.Commit(); err != nil {
@@ -162,17 +160,50 @@ func TestBatchAbortAfterCommit(t *testing.T) {
 	}
 	b.Abort()
 	b.Abort()
-	if got := readFile(t, dest); got != "new\n" {
-		t.Errorf("Abort after Commit changed %s to %q", dest, got)
+	if got := readFile(t, dest); got != "old\n" {
+		t.Errorf("after Abort, %s = %q, want the old bytes back", dest, got)
 	}
 	if got := listTree(t, dir); !slices.Equal(got, []string{"t.md"}) {
 		t.Errorf("files after Abort %v, want only t.md", got)
 	}
-	if err := b.Undo(); err != nil { // nothing left to undo with
-		t.Errorf("Undo after Abort: %v", err)
+	wantNoFolder(t, filepath.Join(dir, "out"))
+	// The Batch is finished: Release can no longer keep the new outputs.
+	if err := b.Release(); err != nil {
+		t.Errorf("Release after Abort: %v", err)
 	}
+	if got := readFile(t, dest); got != "old\n" {
+		t.Errorf("Release after Abort changed %s to %q", dest, got)
+	}
+}
+
+func TestBatchAbortAfterRelease(t *testing.T) {
+	// Only Release keeps the outputs, and after it Abort does nothing.
+	dir := t.TempDir()
+	dest := filepath.Join(dir, "out", "t.md")
+	var b Batch
+	if err := b.Add(dest, []byte("new\n")); err != nil {
+		t.Fatal(err)
+	}
+	if err := b.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if err := b.Release(); err != nil {
+		t.Fatal(err)
+	}
+	b.Abort()
 	if got := readFile(t, dest); got != "new\n" {
-		t.Errorf("Undo after Abort changed %s to %q", dest, got)
+		t.Errorf("Abort after Release changed %s to %q", dest, got)
+	}
+	if got := listTree(t, dir); !slices.Equal(got, []string{"out/t.md"}) {
+		t.Errorf("files after Release and Abort %v, want only out/t.md", got)
+	}
+}
+
+// wantNoFolder checks that path does not exist.
+func wantNoFolder(t *testing.T, path string) {
+	t.Helper()
+	if _, err := os.Lstat(path); !errors.Is(err, fs.ErrNotExist) {
+		t.Errorf("%s exists (err %v), want the folder the batch made removed", path, err)
 	}
 }
 
@@ -234,6 +265,7 @@ func commitUndo(t *testing.T) {
 	if got := listTree(t, dir); !slices.Equal(got, before) {
 		t.Errorf("files after Undo %v, want %v", got, before)
 	}
+	wantNoFolder(t, filepath.Join(dir, "out"))
 	if err := b.Commit(); err == nil {
 		t.Error("Commit after Undo: no error")
 	}
@@ -282,6 +314,7 @@ func TestBatchAbort(t *testing.T) {
 	if got := listTree(t, dir); !slices.Equal(got, []string{"orchard.md"}) {
 		t.Errorf("files after Abort %v, want only orchard.md", got)
 	}
+	wantNoFolder(t, filepath.Join(dir, "out"))
 }
 
 // commitFailure commits a batch whose third file cannot be moved into place
@@ -341,10 +374,11 @@ func commitFailure(t *testing.T) {
 	if err := b.Commit(); err == nil {
 		t.Error("Commit after failed Commit: no error")
 	}
-	want := []string{"a.csv", "d.csv"} // and the folders c.csv/inside and new
+	want := []string{"a.csv", "d.csv"} // and the folder c.csv/inside
 	if got := listTree(t, dir); !slices.Equal(got, want) {
 		t.Errorf("files after failed Commit %v, want %v", got, want)
 	}
+	wantNoFolder(t, filepath.Join(dir, "new"))
 }
 
 func TestBatchCommitFailure(t *testing.T) { commitFailure(t) }
@@ -439,4 +473,81 @@ func TestBatchLostTemporary(t *testing.T) { commitLostTemporary(t) }
 func TestBatchLostTemporaryWithoutHardLinks(t *testing.T) {
 	withoutHardLinks(t)
 	commitLostTemporary(t)
+}
+
+func TestBatchKeepsFoldersInUse(t *testing.T) {
+	// Abort removes only the folders the batch made, and only when they
+	// are empty: a folder that existed stays, and so does a new one that
+	// something else has put a file in meanwhile.
+	dir := t.TempDir()
+	existing := filepath.Join(dir, "results")
+	if err := os.Mkdir(existing, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	var b Batch
+	for _, p := range []string{
+		filepath.Join(existing, "a", "b", "t.csv"),
+		filepath.Join(existing, "a", "c", "u.csv"),
+		filepath.Join(existing, "v.csv"),
+		filepath.Join(dir, "other", "w.csv"),
+	} {
+		if err := b.Add(p, []byte("x\n")); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if got := b.made; len(got) != 4 {
+		t.Errorf("batch made folders %q, want results/a, results/a/b, results/a/c and other", got)
+	}
+	writeFile(t, filepath.Join(dir, "other", "notes.txt"), "someone else's\n")
+	b.Abort()
+	for _, f := range []string{"results/a", "results/a/b", "results/a/c"} {
+		wantNoFolder(t, filepath.Join(dir, filepath.FromSlash(f)))
+	}
+	if info, err := os.Stat(existing); err != nil || !info.IsDir() {
+		t.Errorf("folder %s that was there before: %v, %v", existing, info, err)
+	}
+	if got, want := listTree(t, dir), []string{"other/notes.txt"}; !slices.Equal(got, want) {
+		t.Errorf("files after Abort %v, want %v", got, want)
+	}
+}
+
+func TestBatchAddIntoFile(t *testing.T) {
+	// A destination below a file cannot be staged, and nothing is left.
+	dir := t.TempDir()
+	writeFile(t, filepath.Join(dir, "plain"), "x\n")
+	var b Batch
+	defer b.Abort()
+	if err := b.Add(filepath.Join(dir, "plain", "sub", "t.csv"), nil); err == nil {
+		t.Error("Add below a file: no error")
+	}
+	if got := listTree(t, dir); !slices.Equal(got, []string{"plain"}) {
+		t.Errorf("files after failed Add %v, want only plain", got)
+	}
+}
+
+func TestBatchFolderSyncFailure(t *testing.T) {
+	// Once every file is renamed into place, a folder that cannot be synced
+	// does not fail the Commit or take the outputs back.
+	syncFolder = func(string) error { return errors.New("sync failed") }
+	t.Cleanup(func() { syncFolder = syncDir })
+	dir := t.TempDir()
+	dest := filepath.Join(dir, "t.md")
+	writeFile(t, dest, "old\n")
+	var b Batch
+	defer b.Abort()
+	if err := b.Add(dest, []byte("new\n")); err != nil {
+		t.Fatal(err)
+	}
+	if err := b.Commit(); err != nil {
+		t.Fatalf("Commit with failing folder syncs: %v", err)
+	}
+	if got := readFile(t, dest); got != "new\n" {
+		t.Errorf("after Commit, %s = %q", dest, got)
+	}
+	if err := b.Undo(); err != nil {
+		t.Fatalf("Undo with failing folder syncs: %v", err)
+	}
+	if got := readFile(t, dest); got != "old\n" {
+		t.Errorf("after Undo, %s = %q", dest, got)
+	}
 }
