@@ -168,7 +168,16 @@ func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Option
 		return nil, fmt.Errorf("encode settings: %w", err)
 	}
 	var batch render.Batch
-	defer batch.Abort()
+	var held *ledger.Locked
+	defer func() {
+		// On any early return or panic, undo the tables while the ledger
+		// is still locked (so no other run's tables are overwritten by our
+		// backups), then release the lock.
+		batch.Abort()
+		if held != nil {
+			held.Unlock()
+		}
+	}()
 	var outputs []ledger.Output
 	for _, rt := range c.tables {
 		if err := batch.Add(rt.table.Path, rt.data); err != nil {
@@ -195,11 +204,12 @@ func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Option
 		Finished: ledger.Timestamp(opts.now()),
 	}
 
-	held, err := ledger.Lock(ledgerPath)
+	held, err = ledger.LockContext(ctx, ledgerPath, func() {
+		fmt.Fprintf(opts.stderr(), "concordat: waiting for the ledger lock of %s (another run of this recipe is writing)\n", plan.Path)
+	})
 	if err != nil {
 		return nil, fmt.Errorf("ledger: %w", err)
 	}
-	defer held.Unlock()
 	// Refuse before any table moves if the ledger is damaged, and stop
 	// here if the run was interrupted: this is the last point at which
 	// nothing has been written.
