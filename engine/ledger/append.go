@@ -6,10 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
-	"math/rand/v2"
 	"os"
-	"path/filepath"
-	"strconv"
+
+	"concordat/io/render"
 )
 
 // Append adds rec as the last line of the ledger at path and returns the
@@ -116,62 +115,21 @@ func encodeLine(rec *Record) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// replace writes data to a new hidden temporary file beside path, syncs
-// it, and renames it over path; then it syncs the folder, best-effort, so
-// the rename survives a crash. The new file keeps path's permissions when
-// path exists and otherwise has 0666 less the umask. An error means path
-// was not replaced.
+// replace writes data over path atomically through a render.Batch, the
+// project's one implementation of replace-by-rename: the temporary file is
+// synced before the rename, the new file keeps path's permissions (or 0666
+// less the umask), and the folder sync after the rename is best-effort, so
+// an error means path was not replaced.
 func replace(path string, data []byte) error {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	f, err := createTemp(dir, "."+base+".tmp-")
-	if err != nil {
+	var b render.Batch
+	defer b.Abort()
+	if err := b.Add(path, data); err != nil {
 		return err
 	}
-	temp := f.Name()
-	_, err = f.Write(data)
-	if info, serr := os.Stat(path); err == nil && serr == nil {
-		err = f.Chmod(info.Mode().Perm())
-	}
-	if err == nil {
-		err = f.Sync()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(temp, path)
-	}
-	if err != nil {
-		os.Remove(temp)
+	if err := b.Commit(); err != nil {
 		return err
 	}
-	// The ledger is replaced. A failed folder sync risks only losing the
-	// rename in a crash, and cannot be taken back by failing now.
-	_ = syncFolder(dir)
+	// The ledger is replaced; a backup left behind is untidy, not wrong.
+	_ = b.Release()
 	return nil
-}
-
-// syncFolder is syncDir; tests replace it to make folder syncs fail.
-var syncFolder = syncDir
-
-// createTemp creates a new file in dir named prefix followed by a random
-// number, for writing, with the permissions 0666 less the umask. Unlike
-// os.CreateTemp, which always uses 0600, it lets the umask decide, as
-// os.Create does.
-func createTemp(dir, prefix string) (*os.File, error) {
-	// Like os.CreateTemp, try random names until one is free; 10000 tries
-	// is os.CreateTemp's own limit.
-	var err error
-	for range 10000 {
-		name := filepath.Join(dir, prefix+strconv.FormatUint(uint64(rand.Uint32()), 10))
-		var f *os.File
-		f, err = os.OpenFile(name, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666)
-		if !errors.Is(err, fs.ErrExist) {
-			return f, err
-		}
-	}
-	return nil, fmt.Errorf("create temporary file in %q: %w", dir, err)
 }
