@@ -585,3 +585,31 @@ table "json" {
 		t.Error("ledger changed after a failed append")
 	}
 }
+
+// TestCheckFindsParquetTypeMismatch: check (which reads no data) already
+// reports a Parquet text column requested as numbers, at the recipe line
+// that names it, with the hint to declare levels.
+func TestCheckFindsParquetTypeMismatch(t *testing.T) {
+	p := plan(t, fmt.Sprintf(`
+dataset "sensors" { path = %q }
+pairing "p" {
+  dataset = "sensors"
+  x = ["temp_c"]
+  y = ["alarm_level"]
+}
+test "t" { pairing = "p" }
+table "o" {
+  tests = ["t"]
+  path  = "o.csv"
+}
+`, writePipelineParquet(t)), nil)
+	diags := Check(p)
+	if len(diags) != 1 {
+		t.Fatalf("got %d diagnostics, want 1: %v", len(diags), diags)
+	}
+	d := diags[0]
+	if d.Summary != "Column cannot be read" || d.Subject == nil || d.Subject.Start.Line != 6 ||
+		!strings.Contains(d.Detail, `column "alarm_level" holds text`) || !strings.Contains(d.Detail, "declare its levels") {
+		t.Errorf("diagnostic = %s at %v: %s", d.Summary, d.Subject, d.Detail)
+	}
+}

@@ -73,6 +73,7 @@ func Check(plan *recipe.Plan) hcl.Diagnostics {
 		for _, c := range ds.Columns {
 			unknown(c.Name, c.DeclRange, "column block")
 		}
+		before := len(diags)
 		for _, p := range plan.Pairings {
 			if p.Dataset != ds {
 				continue
@@ -84,6 +85,38 @@ func Check(plan *recipe.Plan) hcl.Diagnostics {
 				unknown(p.By, p.ColumnRanges[p.By], "grouping column")
 			}
 		}
+		if len(diags) > before {
+			continue
+		}
+		// Every column is there: a typed file (Parquet) can still store one
+		// in a type that cannot be read as the recipe asks.
+		spec, _ := datasetSpec(plan, ds)
+		if err := dataset.Types(spec); err != nil {
+			diags = append(diags, typeDiagnostics(plan, ds, err)...)
+		}
+	}
+	return diags
+}
+
+// typeDiagnostics points each column of the wrong stored type at the recipe
+// line that names it.
+func typeDiagnostics(plan *recipe.Plan, ds *recipe.Dataset, err error) hcl.Diagnostics {
+	var errs []error
+	if j, ok := err.(interface{ Unwrap() []error }); ok {
+		errs = j.Unwrap()
+	} else {
+		errs = []error{err}
+	}
+	var diags hcl.Diagnostics
+	for _, e := range errs {
+		d := &hcl.Diagnostic{Severity: hcl.DiagError, Summary: "Column cannot be read", Detail: e.Error() + ".", Subject: ds.PathRange.Ptr()}
+		var ce *dataset.ColumnError
+		if errors.As(e, &ce) {
+			d.Subject = columnRange(plan, ds, ce.Column).Ptr()
+		} else {
+			d.Summary, d.Extra = "Cannot read dataset", dataFault{}
+		}
+		diags = append(diags, d)
 	}
 	return diags
 }

@@ -418,3 +418,35 @@ func TestParquetDuplicateName(t *testing.T) {
 		t.Errorf("y = %v", tab.Columns[0].Values)
 	}
 }
+
+// TestTypesWithoutReading: Types reports every requested Parquet column of a
+// type that cannot be read as asked, the same ColumnErrors Read gives, and
+// nothing for a text file (whose cells carry no type).
+func TestTypesWithoutReading(t *testing.T) {
+	p := writeOrchardParquet(t, 1024)
+	spec := Spec{Path: p, Format: Parquet, Columns: []ColumnSpec{
+		{Name: "plot", Kind: Label},
+		{Name: "netted", Kind: Numeric},
+		{Name: "yield_kg", Kind: Numeric},
+		{Name: "grade", Kind: Numeric},
+	}}
+	err := Types(spec)
+	var bad []string
+	for _, e := range err.(interface{ Unwrap() []error }).Unwrap() {
+		var ce *ColumnError
+		if !errors.As(e, &ce) {
+			t.Fatalf("%v is not a *ColumnError", e)
+		}
+		bad = append(bad, ce.Column)
+	}
+	if strings.Join(bad, ",") != "netted,grade" {
+		t.Errorf("Types flagged %v, want netted and grade", bad)
+	}
+	spec.Columns = spec.Columns[:1]
+	if err := Types(spec); err != nil {
+		t.Errorf("Types on good columns: %v", err)
+	}
+	if err := Types(Spec{Path: "testdata/orchard_harvest.csv", Format: CSV, Columns: []ColumnSpec{{Name: "grade", Kind: Numeric}}}); err != nil {
+		t.Errorf("Types on CSV: %v", err)
+	}
+}

@@ -4,9 +4,11 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"io"
 	"os"
+	"slices"
 )
 
 // Read reads the columns that spec asks for from spec.Path, following the
@@ -76,4 +78,37 @@ func hashStream(r io.Reader) (string, int64, error) {
 		return "", 0, err
 	}
 	return hex.EncodeToString(h.Sum(nil)), n, nil
+}
+
+// Types checks, without reading any data, that each requested column of a
+// Parquet file has a stored type that can be read as the requested kind. It
+// returns every mismatch as a *ColumnError, joined with errors.Join, or nil.
+// Text files store no types, so for CSV and TSV it returns nil: their cells
+// are checked as they are read. Missing and repeated names are the caller's
+// to check with [Header].
+func Types(spec Spec) error {
+	if spec.Format != Parquet {
+		return nil
+	}
+	f, err := os.Open(spec.Path)
+	if err != nil {
+		return fmt.Errorf("read dataset %q: %w", spec.Path, err)
+	}
+	defer f.Close()
+	_, fr, err := openParquet(spec.Path, f)
+	if err != nil {
+		return err
+	}
+	names := fieldNames(fr)
+	var errs []error
+	for _, cs := range spec.Columns {
+		i := slices.Index(names, cs.Name)
+		if i < 0 {
+			continue
+		}
+		if err := checkParquetType(spec.Path, cs, fr.Manifest.Fields[i]); err != nil {
+			errs = append(errs, err)
+		}
+	}
+	return errors.Join(errs...)
 }
