@@ -44,6 +44,16 @@ func plan(t *testing.T, src string, files map[string]string) *recipe.Plan {
 	return p
 }
 
+// mustCompute computes p with default options and fails the test on error.
+func mustCompute(t *testing.T, p *recipe.Plan) *Computation {
+	t.Helper()
+	comp, err := Compute(context.Background(), p, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return comp
+}
+
 func abs(t *testing.T, rel string) string {
 	t.Helper()
 	a, err := filepath.Abs(rel)
@@ -126,10 +136,7 @@ table "all" {
 }
 `, data)
 	p := plan(t, src, nil)
-	comp, err := Compute(context.Background(), p, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	comp := mustCompute(t, p)
 	got := map[string]Result{}
 	for _, r := range comp.Results {
 		got[r.X+"|"+r.Y+"|"+r.Group+"|"+r.Measure] = r
@@ -218,10 +225,7 @@ table "o" {
 }
 `, map[string]string{"beds.csv": "bed,moisture,growth,flat\n" +
 		"a,1,2,7\na,2,1,7\na,3,4,7\na,4,3,7\na,5,6,7\nb,1,1,7\nb,2,NA,7\n"})
-	comp, err := Compute(context.Background(), p, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	comp := mustCompute(t, p)
 	for _, r := range comp.Results {
 		undefined := r.Y == "flat" || r.Group == "b"
 		if !undefined {
@@ -269,10 +273,7 @@ table "o" {
   path  = "o.csv"
 }
 `, tc.rule), map[string]string{"d.csv": data})
-		comp, err := Compute(context.Background(), p, Options{})
-		if err != nil {
-			t.Fatal(err)
-		}
+		comp := mustCompute(t, p)
 		for _, r := range comp.Results {
 			if want := tc.want[r.X+"|"+r.Y]; r.N != want || r.NDropped != 6-want {
 				t.Errorf("%s %s|%s: n = %d dropped = %d, want %d and %d", tc.rule, r.X, r.Y, r.N, r.NDropped, want, 6-want)
@@ -400,10 +401,7 @@ table "o" {
   path  = "o.csv"
 }
 `, map[string]string{"d.csv": "x,y\n-Inf,1\n2,2\n3,3\n4,4\nInf,5\n"})
-	comp, err := Compute(context.Background(), p, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	comp := mustCompute(t, p)
 	for _, r := range comp.Results {
 		switch r.Measure {
 		case "spearman", "kendall_b":
@@ -435,10 +433,7 @@ table "o" {
   path  = "o.csv"
 }
 `, map[string]string{"d.csv": "site,x,y\nA,1,2\nA,2,1\nA,3,3\nB,1,1\nB,2,3\nB,3,2\nNA,4,4\n"})
-	comp, err := Compute(context.Background(), p, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	comp := mustCompute(t, p)
 	want := map[string]int{"all": 7, "A": 3, "B": 3}
 	if len(comp.Results) != len(want) {
 		t.Fatalf("got %d results, want %d", len(comp.Results), len(want))
@@ -476,10 +471,7 @@ table "o" {
   path  = "o.md"
 }
 `, map[string]string{"d.csv": "x,y\n1,2\n2,1\n3,4\n4,3\n5,6\n6,5\n"})
-	comp, err := Compute(context.Background(), p, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	comp := mustCompute(t, p)
 	md := string(comp.tables[0].data)
 	for _, want := range []string{"| level", " 95% ", " 90% "} {
 		if !strings.Contains(md, want) {
@@ -510,10 +502,7 @@ table "o" {
   path  = "o.md"
 }
 `, map[string]string{"d.csv": "x,y\n1,2\n2,1\n3,4\n4,3\n5,6\n6,5\n"})
-	comp, err := Compute(context.Background(), p, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	comp := mustCompute(t, p)
 	md := string(comp.tables[0].data)
 	if !strings.Contains(md, "| alternative") || !strings.Contains(md, "greater") || !strings.Contains(md, "1.000]") {
 		t.Errorf("markdown does not show the one-sided test:\n%s", md)

@@ -1,7 +1,6 @@
 package engine
 
 import (
-	"context"
 	"math"
 	"slices"
 	"strings"
@@ -111,10 +110,7 @@ table "o" {
   path  = "o.json"
 }
 `, map[string]string{"d.csv": tc.data})
-			comp, err := Compute(context.Background(), p, Options{})
-			if err != nil {
-				t.Fatal(err)
-			}
+			comp := mustCompute(t, p)
 			i := slices.IndexFunc(comp.Results, func(r Result) bool { return r.Measure == tc.measure })
 			if i < 0 {
 				t.Fatalf("no %s result", tc.measure)

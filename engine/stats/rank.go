@@ -16,7 +16,8 @@ type valueIndex struct {
 
 // compareValueIndex orders by value, then by position, so that equal values
 // keep their order of appearance (the order TieFirst needs) without the cost
-// of a stable sort.
+// of a stable sort. The comparisons are written out: cmp.Compare also
+// orders NaN, which never reaches here, and measured ~30% slower in Rank.
 func compareValueIndex(a, b valueIndex) int {
 	switch {
 	case a.v < b.v:
