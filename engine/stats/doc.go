@@ -22,4 +22,12 @@
 //     table, so exact and permutation p-values slot in beside them.
 //   - FisherInterval, BonettWrightInterval, FiellerInterval: intervals on
 //     the atanh scale, each with its published standard error.
+//   - PartialCorrelation, PartialSpearman: the correlation of x and y after
+//     least-squares removal of control columns (on ranks for Spearman), by
+//     reorthogonalized Gram–Schmidt; PartialT, PartialFisherInterval and
+//     PartialBonettWrightInterval are their p-value and intervals with the
+//     degrees of freedom reduced by the number of controls (Fisher 1924).
+//   - Adjust: multiplicity-adjusted p-values for one family (Bonferroni,
+//     Holm, Hochberg, Hommel, Benjamini–Hochberg, Benjamini–Yekutieli),
+//     NaN entries outside the family; Adjustment names the method.
 package stats

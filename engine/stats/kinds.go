@@ -61,10 +61,15 @@ func (a Alternative) String() string {
 type Measure int
 
 const (
-	_        Measure = iota
-	Spearman         // Spearman's rho: Pearson's r on ranks
-	KendallB         // Kendall's tau-b, corrected for ties
-	PearsonR         // Pearson's product-moment r on the raw values
+	_         Measure = iota
+	Spearman          // Spearman's rho: Pearson's r on ranks
+	KendallB          // Kendall's tau-b, corrected for ties
+	PearsonR          // Pearson's product-moment r on the raw values
+	KendallA          // Kendall's tau-a: ties stay in the denominator
+	KendallC          // Stuart's tau-c
+	Gamma             // Goodman and Kruskal's gamma
+	SomersDYX         // Somers' d with y dependent
+	SomersDXY         // Somers' d with x dependent
 )
 
 // String returns the measure's name as it appears in recipes and tables.
@@ -76,6 +81,16 @@ func (m Measure) String() string {
 		return "kendall_b"
 	case PearsonR:
 		return "pearson"
+	case KendallA:
+		return "kendall_a"
+	case KendallC:
+		return "kendall_c"
+	case Gamma:
+		return "gamma"
+	case SomersDYX:
+		return "somers_d_yx"
+	case SomersDXY:
+		return "somers_d_xy"
 	}
 	return fmt.Sprintf("Measure(%d)", int(m))
 }
