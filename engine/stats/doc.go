@@ -14,9 +14,14 @@
 //   - Pearson, SpearmanRho: product-moment r, and ρ as r on ranks.
 //   - CountPairs: one O(n log n) pass (Knight 1966) that classifies every
 //     pair as concordant, discordant or tied and keeps the tie-group sums;
-//     its methods give τ_b, τ_a, S and the tie-corrected Var(S), and later
-//     pair-based measures (τ_c, γ, Somers' d) need nothing more.
-//     KendallTauB is the shortcut.
+//     its methods give τ_a, τ_b, Stuart's τ_c, Goodman and Kruskal's γ,
+//     Somers' d in both directions (Estimate dispatches by Measure), S and
+//     the tie-corrected Var(S). KendallTauB is the shortcut.
+//   - OrdinalSE, OrdinalSEs: the non-null asymptotic standard errors of
+//     those six measures by the delta method (Goodman and Kruskal 1972,
+//     Brown and Benedetti 1977), from per-observation concordant and
+//     discordant counts found in O(n log n); WaldInterval turns an estimate
+//     and its standard error into est ∓ z·se on the original scale.
 //   - CorrelationT, KendallNormal: asymptotic p-values, one function per
 //     reference distribution; PMethod names the method for the result
 //     table, so exact and permutation p-values slot in beside them.

@@ -31,8 +31,10 @@ func (g *TieGroups) add(size int) {
 // (xⱼ, yⱼ) of a paired sample. Every pair is exactly one of: concordant,
 // discordant, tied in x only, tied in y only, tied in both. From these counts
 // the whole family of Kendall-type measures follows without another pass:
-// τ_a, τ_b, τ_c (Stuart 1953, using TiesX.Distinct and TiesY.Distinct),
-// Goodman and Kruskal's γ, Somers' d, and the variance of S.
+// the methods TauA, TauB, TauC (which uses TiesX.Distinct and
+// TiesY.Distinct), Gamma, SomersDYX and SomersDXY, dispatched by Estimate,
+// and VarS, the null variance of S. Their standard errors need counts per
+// observation, not per sample: see OrdinalSE.
 type PairCounts struct {
 	N int // number of observations
 
@@ -218,6 +220,103 @@ func (c PairCounts) TauB() float64 {
 		return math.NaN()
 	}
 	return clamp1(float64(c.S()) / math.Sqrt(float64(dx)*float64(dy)))
+}
+
+// TauC returns Stuart's τ_c, which adjusts τ_a for the largest |S| a table
+// with m rows or m columns allows:
+//
+//	τ_c = 2mS / (n²(m − 1)),  m = min(distinct x values, distinct y values).
+//
+// It returns NaN when m < 2 (x or y constant, or n < 2). The result is
+// clamped to [−1, 1].
+//
+// Reference: A. Stuart (1953), The estimation and comparison of strengths of
+// association in contingency tables, Biometrika 40(1/2), 105–110.
+func (c PairCounts) TauC() float64 {
+	m := min(c.TiesX.Distinct, c.TiesY.Distinct)
+	if m < 2 {
+		return math.NaN()
+	}
+	n, mf := float64(c.N), float64(m)
+	return clamp1(2 * mf * float64(c.S()) / (n * n * (mf - 1)))
+}
+
+// Gamma returns Goodman and Kruskal's γ, S over the pairs that are untied in
+// both x and y:
+//
+//	γ = (n_c − n_d) / (n_c + n_d).
+//
+// It returns NaN when no pair is untied in both (n_c + n_d = 0). The result
+// is clamped to [−1, 1].
+//
+// Reference: L. A. Goodman and W. H. Kruskal (1954), Measures of association
+// for cross classifications, Journal of the American Statistical Association
+// 49(268), 732–764.
+func (c PairCounts) Gamma() float64 {
+	untied := c.Concordant + c.Discordant
+	if untied == 0 {
+		return math.NaN()
+	}
+	return clamp1(float64(c.S()) / float64(untied))
+}
+
+// SomersDYX returns Somers' d of y on x (y dependent), S over the pairs
+// untied on the independent variable x:
+//
+//	d_yx = (n_c − n_d) / (n_0 − n_1),
+//
+// with n_0 = n(n−1)/2 and n_1 the pairs tied in x. It returns NaN when no
+// pair is untied on x (x constant, or n < 2). The result is clamped to
+// [−1, 1].
+//
+// Reference: R. H. Somers (1962), A new asymmetric measure of association for
+// ordinal variables, American Sociological Review 27(6), 799–811.
+func (c PairCounts) SomersDYX() float64 {
+	return somersD(c.S(), c.Pairs()-c.TiedX)
+}
+
+// SomersDXY returns Somers' d of x on y (x dependent), S over the pairs
+// untied on the independent variable y:
+//
+//	d_xy = (n_c − n_d) / (n_0 − n_2),
+//
+// with n_0 = n(n−1)/2 and n_2 the pairs tied in y. It returns NaN when no
+// pair is untied on y (y constant, or n < 2). The result is clamped to
+// [−1, 1].
+//
+// Reference: R. H. Somers (1962), A new asymmetric measure of association for
+// ordinal variables, American Sociological Review 27(6), 799–811.
+func (c PairCounts) SomersDXY() float64 {
+	return somersD(c.S(), c.Pairs()-c.TiedY)
+}
+
+func somersD(s, untied int64) float64 {
+	if untied == 0 {
+		return math.NaN()
+	}
+	return clamp1(float64(s) / float64(untied))
+}
+
+// Estimate returns the Kendall-family measure m from the counts: TauA for
+// KendallA, TauB for KendallB, TauC for KendallC, and the methods of the
+// same name for Gamma, SomersDYX and SomersDXY, with their NaN cases. It
+// panics for any other Measure (Spearman and PearsonR are not pair counts).
+func (c PairCounts) Estimate(m Measure) float64 {
+	switch m {
+	case KendallA:
+		return c.TauA()
+	case KendallB:
+		return c.TauB()
+	case KendallC:
+		return c.TauC()
+	case Gamma:
+		return c.Gamma()
+	case SomersDYX:
+		return c.SomersDYX()
+	case SomersDXY:
+		return c.SomersDXY()
+	}
+	panic(fmt.Sprintf("stats: PairCounts.Estimate: %v is not a Kendall-family measure", m))
 }
 
 // VarS returns the variance of S = n_c − n_d under independence, corrected

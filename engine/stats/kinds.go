@@ -57,7 +57,8 @@ func (a Alternative) String() string {
 }
 
 // Measure names an association measure. The zero value is invalid. The
-// Pearson measure is PearsonR, because Pearson is the function computing it.
+// Pearson measure is PearsonR, because Pearson is the function computing it;
+// the Kendall family (KendallA … SomersDXY) is computed from PairCounts.
 type Measure int
 
 const (
@@ -65,34 +66,57 @@ const (
 	Spearman          // Spearman's rho: Pearson's r on ranks
 	KendallB          // Kendall's tau-b, corrected for ties
 	PearsonR          // Pearson's product-moment r on the raw values
-	KendallA          // Kendall's tau-a: ties stay in the denominator
-	KendallC          // Stuart's tau-c
-	Gamma             // Goodman and Kruskal's gamma
-	SomersDYX         // Somers' d with y dependent
-	SomersDXY         // Somers' d with x dependent
+	KendallA          // Kendall's tau-a: S over all pairs
+	KendallC          // Stuart's tau-c: S scaled by the smaller number of categories
+	Gamma             // Goodman and Kruskal's gamma: S over the untied pairs
+	SomersDYX         // Somers' d with y dependent: S over the pairs untied on x
+	SomersDXY         // Somers' d with x dependent: S over the pairs untied on y
 )
+
+// measureWords holds the recipe and table word of every Measure, in
+// declaration order.
+var measureWords = []struct {
+	m    Measure
+	word string
+}{
+	{Spearman, "spearman"},
+	{KendallB, "kendall_b"},
+	{PearsonR, "pearson"},
+	{KendallA, "kendall_a"},
+	{KendallC, "kendall_c"},
+	{Gamma, "gamma"},
+	{SomersDYX, "somers_d_yx"},
+	{SomersDXY, "somers_d_xy"},
+}
 
 // String returns the measure's name as it appears in recipes and tables.
 func (m Measure) String() string {
-	switch m {
-	case Spearman:
-		return "spearman"
-	case KendallB:
-		return "kendall_b"
-	case PearsonR:
-		return "pearson"
-	case KendallA:
-		return "kendall_a"
-	case KendallC:
-		return "kendall_c"
-	case Gamma:
-		return "gamma"
-	case SomersDYX:
-		return "somers_d_yx"
-	case SomersDXY:
-		return "somers_d_xy"
+	for _, w := range measureWords {
+		if w.m == m {
+			return w.word
+		}
 	}
 	return fmt.Sprintf("Measure(%d)", int(m))
+}
+
+// ParseMeasure returns the Measure whose String is s, and false when s names
+// none (the match is exact: no case folding, no trimming).
+func ParseMeasure(s string) (Measure, bool) {
+	for _, w := range measureWords {
+		if w.word == s {
+			return w.m, true
+		}
+	}
+	return 0, false
+}
+
+// Measures returns every valid Measure in declaration order, in a new slice.
+func Measures() []Measure {
+	ms := make([]Measure, len(measureWords))
+	for i, w := range measureWords {
+		ms[i] = w.m
+	}
+	return ms
 }
 
 // PMethod says how a p-value was obtained; the engine reports it in the
