@@ -35,4 +35,10 @@
 //   - Adjust: multiplicity-adjusted p-values for one family (Bonferroni,
 //     Holm, Hochberg, Hommel, Benjamini–Hochberg, Benjamini–Yekutieli),
 //     NaN entries outside the family; Adjustment names the method.
+//   - CheckMonotone, Isotonic: a warning for U and inverted-U relations,
+//     which a rank correlation near zero would hide: the group means of the
+//     ranks against their best monotone (isotonic, pool-adjacent-violators)
+//     fit, with a conservative test of the bend, in O(n log n).
+//   - CorrelationPower, CorrelationSampleSize: planning on the Fisher-z
+//     scale with the same standard errors as the intervals.
 package stats
