@@ -25,6 +25,9 @@
 //   - CorrelationT, KendallNormal: asymptotic p-values, one function per
 //     reference distribution; PMethod names the method for the result
 //     table, so exact and permutation p-values slot in beside them.
+//   - KendallExactP: the exact null distribution of Kendall's S without
+//     ties (Mahonian numbers), n ≤ KendallExactMaxN, with full relative
+//     accuracy in the far tails and a per-n cache for repeated calls.
 //   - FisherInterval, BonettWrightInterval, FiellerInterval: intervals on
 //     the atanh scale, each with its published standard error.
 //   - PartialCorrelation, PartialSpearman: the correlation of x and y after
@@ -41,4 +44,12 @@
 //     fit, with a conservative test of the bend, in O(n log n).
 //   - CorrelationPower, CorrelationSampleSize: planning on the Fisher-z
 //     scale with the same standard errors as the intervals.
+//   - StreamKey, NewStreamKey: independent random streams named by the
+//     seed and labels (SHA-256), cut into fixed blocks with one ChaCha8
+//     generator each, so results never depend on the worker count.
+//   - PermutationTest, ExactPermutationTest, Arrangements: conditional
+//     permutation tests of every measure, by Monte Carlo ((b+1)/(m+1)) or by
+//     enumerating the distinct arrangements (up to MaxEnumeration).
+//   - BootstrapInterval: percentile and BCa intervals from paired
+//     resampling of rows, for any statistic given as a NewStatistic.
 package stats
