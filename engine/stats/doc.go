@@ -28,6 +28,11 @@
 //   - KendallExactP: the exact null distribution of Kendall's S without
 //     ties (Mahonian numbers), n ≤ KendallExactMaxN, with full relative
 //     accuracy in the far tails and a per-n cache for repeated calls.
+//   - SpearmanExactP, SpearmanEdgeworthP: p-values of ρ without ties from
+//     its null distribution, exact (a dynamic programme over sets of ranks,
+//     cached per n) for n ≤ SpearmanExactMaxN, and by the Edgeworth series
+//     of Best & Roberts (AS 89) above; SpearmanEdgeworthMaxN is where the
+//     engine hands over to CorrelationT.
 //   - FisherInterval, BonettWrightInterval, FiellerInterval: intervals on
 //     the atanh scale, each with its published standard error.
 //   - PartialCorrelation, PartialSpearman: the correlation of x and y after
