@@ -3,6 +3,7 @@ package recipe
 import (
 	"math"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -40,13 +41,13 @@ var (
 	}
 	testSpec = spec{
 		where:    "in a test block",
-		attrs:    []string{"pairing", "ties", "measures", "alternative", "p_value", "permutations", "adjust"},
+		attrs:    []string{"pairing", "ties", "measures", "alternative", "p_value", "permutations", "adjust", "controls"},
 		blocks:   []string{"interval"},
 		required: []string{"pairing"},
 	}
 	intervalSpec = spec{
 		where: "in an interval block",
-		attrs: []string{"level", "method"},
+		attrs: []string{"level", "method", "resamples"},
 	}
 	tableSpec = spec{
 		where:    "in a table block",
@@ -406,9 +407,9 @@ func (d *decoder) decodeTest(b *hclsyntax.Block, pairings *names[*Pairing], ties
 		Measures:     []stats.Measure{stats.Spearman},
 		Alternative:  stats.TwoSided,
 		PValue:       PAuto,
-		Interval:     &Interval{Level: defaultLevel, Method: IntervalFisher, DeclRange: b.DefRange()},
+		Interval:     defaultInterval(b.DefRange()),
 		Permutations: defaultPermutations,
-		Adjust:       "none",
+		Adjust:       stats.AdjustNone,
 		DeclRange:    b.DefRange(),
 	}
 	if a := c.attrs["pairing"]; a != nil {
@@ -435,9 +436,22 @@ func (d *decoder) decodeTest(b *hclsyntax.Block, pairings *names[*Pairing], ties
 			items, _ = d.distinct(a, items, "measure")
 			ctx := a.SrcRange
 			var ms []stats.Measure
+			var somers hcl.Range // where the two-way "somers_d" was written
 			for _, it := range items {
-				if d.checkWord(it.s, it.rng, &ctx, measureWords) {
-					ms = append(ms, measureOf[it.s])
+				if !d.checkWord(it.s, it.rng, &ctx, measureWords) {
+					continue
+				}
+				if it.s == "somers_d" {
+					somers = it.rng
+				}
+				for _, m := range measuresOf(it.s) {
+					if slices.Contains(ms, m) {
+						d.errorf(it.rng, &ctx, "Duplicate measure",
+							"%s is already computed: \"somers_d\" at %s gives both somers_d_yx (y dependent) and somers_d_xy (x dependent). List either somers_d or the directions you want.",
+							m, pos(somers))
+						continue
+					}
+					ms = append(ms, m)
 				}
 			}
 			t.Measures = ms
@@ -451,7 +465,7 @@ func (d *decoder) decodeTest(b *hclsyntax.Block, pairings *names[*Pairing], ties
 	}
 	if a := c.attrs["p_value"]; a != nil {
 		if w, ok := d.word(a, pMethods); ok {
-			t.PValue = map[string]PMethod{"auto": PAuto, "asymptotic": PAsymptotic}[w]
+			t.PValue = map[string]PMethod{"auto": PAuto, "exact": PExact, "asymptotic": PAsymptotic, "permutation": PPermutation}[w]
 		}
 	}
 	if a := c.attrs["permutations"]; a != nil {
@@ -459,7 +473,12 @@ func (d *decoder) decodeTest(b *hclsyntax.Block, pairings *names[*Pairing], ties
 		t.Permutations = int(n)
 	}
 	if a := c.attrs["adjust"]; a != nil {
-		t.Adjust, _ = d.word(a, adjustMethods)
+		if w, ok := d.word(a, adjustMethods); ok {
+			t.Adjust, _ = stats.ParseAdjustment(w)
+		}
+	}
+	if a := c.attrs["controls"]; a != nil {
+		d.decodeControls(a, t)
 	}
 
 	var first *hclsyntax.Block
@@ -476,18 +495,107 @@ func (d *decoder) decodeTest(b *hclsyntax.Block, pairings *names[*Pairing], ties
 	return t
 }
 
-var measureOf = map[string]stats.Measure{
-	"spearman": stats.Spearman, "kendall_b": stats.KendallB, "pearson": stats.PearsonR,
+// measuresOf maps a measure word to the measures it asks for: one, except
+// "somers_d", which is asymmetric and gives both directions.
+func measuresOf(w string) []stats.Measure {
+	switch w {
+	case "spearman":
+		return []stats.Measure{stats.Spearman}
+	case "kendall_b":
+		return []stats.Measure{stats.KendallB}
+	case "kendall_a":
+		return []stats.Measure{stats.KendallA}
+	case "kendall_c":
+		return []stats.Measure{stats.KendallC}
+	case "gamma":
+		return []stats.Measure{stats.Gamma}
+	case "somers_d":
+		return []stats.Measure{stats.SomersDYX, stats.SomersDXY}
+	case "somers_d_yx":
+		return []stats.Measure{stats.SomersDYX}
+	case "somers_d_xy":
+		return []stats.Measure{stats.SomersDXY}
+	case "pearson":
+		return []stats.Measure{stats.PearsonR}
+	}
+	panic("recipe: measure word without a measure: " + w)
+}
+
+// decodeControls reads a test's controls: columns of the pairing's dataset
+// that are partialled out of spearman and pearson. Kendall-type measures
+// have no partial form with an agreed test, and the exact and permutation
+// nulls here are for two variables, so both are refused with controls.
+func (d *decoder) decodeControls(a *attr, t *Test) {
+	items, ok := d.list(a)
+	if !ok {
+		return
+	}
+	ctx := a.SrcRange
+	if len(items) == 0 {
+		d.errorf(a.Expr.Range(), &ctx, "Empty list",
+			"controls must name at least one column to partial out, or be left out.")
+		return
+	}
+	items, _ = d.distinct(a, items, "column")
+	t.ControlRanges = map[string]hcl.Range{}
+	for _, it := range items {
+		if strings.TrimSpace(it.s) == "" {
+			d.errorf(it.rng, &ctx, "Empty column name", "Column names in controls must not be empty.")
+			continue
+		}
+		if p := t.Pairing; p != nil {
+			if r, paired := p.ColumnRanges[it.s]; paired {
+				role := "paired"
+				if it.s == p.By {
+					role = "the grouping column"
+				}
+				d.errorf(it.rng, &ctx, "Control is also paired",
+					"%s is %s in pairing %s (at %s); a column cannot be both correlated (or grouped by) and partialled out.",
+					quote(it.s), role, quote(p.Name), pos(r))
+				continue
+			}
+		}
+		t.Controls = append(t.Controls, it.s)
+		t.ControlRanges[it.s] = it.rng
+	}
+	for _, m := range t.Measures {
+		if m != stats.Spearman && m != stats.PearsonR {
+			d.errorf(a.Expr.Range(), &ctx, "Measure has no partial form",
+				"With controls, only \"spearman\" (partial Spearman: Pearson's partial correlation of ranks) and \"pearson\" can be computed; %s has no partial form with an agreed test. Move it to a test without controls.",
+				quote(m.String()))
+		}
+	}
+	if t.PValue == PExact || t.PValue == PPermutation {
+		d.errorf(a.Expr.Range(), &ctx, "P-value method unavailable with controls",
+			"A partial correlation is tested with Student's t on n − 2 − k degrees of freedom; p_value = %s has no form for partial correlations here. Use \"auto\" or \"asymptotic\".",
+			quote(t.PValue.String()))
+	}
+}
+
+// defaultInterval is the interval of a test without an interval block.
+func defaultInterval(header hcl.Range) *Interval {
+	return &Interval{Level: defaultLevel, Method: IntervalFisher, Resamples: defaultResamples, DeclRange: header}
 }
 
 func (d *decoder) decodeInterval(b *hclsyntax.Block) *Interval {
 	c := d.content(b.Body, intervalSpec, b.DefRange())
-	iv := &Interval{Level: defaultLevel, Method: IntervalFisher, DeclRange: b.DefRange()}
+	iv := defaultInterval(b.DefRange())
 	if a := c.attrs["level"]; a != nil {
 		iv.Level, _ = d.fraction(a, 0, 1, false, "0.95")
 	}
 	if a := c.attrs["method"]; a != nil {
-		d.word(a, intervalMethods) // "fisher" is the only method accepted
+		if w, ok := d.word(a, intervalMethods); ok {
+			iv.Method = map[string]IntervalMethod{"fisher": IntervalFisher, "bootstrap": IntervalBootstrap, "bca": IntervalBCa}[w]
+		}
+	}
+	if a := c.attrs["resamples"]; a != nil {
+		n, _ := d.integer(a, minResamples, maxResamples)
+		iv.Resamples = int(n)
+		if iv.Method == IntervalFisher {
+			ctx := a.SrcRange
+			d.warnf(a.Expr.Range(), &ctx, "Resamples unused",
+				"resamples applies to bootstrap and bca intervals; this interval uses the fisher method, so it is ignored.")
+		}
 	}
 	return iv
 }

@@ -83,14 +83,20 @@ func (p *Plan) Describe(w io.Writer) error {
 		b.WriteString("measures = " + hclList(measureWordsOf(t.Measures)) + "\n")
 		b.WriteString("alternative = " + quote(t.Alternative.String()) + "\n")
 		b.WriteString("p_value = " + quote(t.PValue.String()) + "\n")
-		b.WriteString("permutations = " + strconv.Itoa(t.Permutations) + " # recorded; unused by asymptotic p-values\n")
-		b.WriteString("adjust = " + quote(t.Adjust) + "\n")
+		b.WriteString("permutations = " + strconv.Itoa(t.Permutations) + " # draws, when a result's p-value is by permutation\n")
+		b.WriteString("adjust = " + quote(t.Adjust.String()) + "\n")
+		if len(t.Controls) > 0 {
+			b.WriteString("controls = " + hclList(t.Controls) + "\n")
+		}
 		if t.Ties.Builtin {
 			fmt.Fprintf(&b, "# ties: built-in default, rank = %s, max_share = %s\n",
 				quote(t.Ties.Rule.String()), num(t.Ties.MaxShare))
 		}
-		fmt.Fprintf(&b, "\ninterval {\nlevel = %s\nmethod = %s\n}\n}\n",
-			num(t.Interval.Level), quote(t.Interval.Method.String()))
+		fmt.Fprintf(&b, "\ninterval {\nlevel = %s\nmethod = %s\n", num(t.Interval.Level), quote(t.Interval.Method.String()))
+		if t.Interval.Method != IntervalFisher {
+			fmt.Fprintf(&b, "resamples = %d\n", t.Interval.Resamples)
+		}
+		b.WriteString("}\n}\n")
 	}
 
 	for _, t := range p.Tables {
@@ -179,8 +185,11 @@ func (p *Plan) Settings() any {
 			Alternative:  t.Alternative.String(),
 			PValue:       t.PValue.String(),
 			Permutations: t.Permutations,
-			Interval:     intervalSettings{Level: t.Interval.Level, Method: t.Interval.Method.String()},
-			Adjust:       t.Adjust,
+			Interval: intervalSettings{
+				Level: t.Interval.Level, Method: t.Interval.Method.String(), Resamples: t.Interval.Resamples,
+			},
+			Adjust:   t.Adjust.String(),
+			Controls: nonNil(t.Controls),
 		})
 	}
 	for _, t := range p.Tables {
@@ -250,8 +259,9 @@ type tiesSettings struct {
 }
 
 type intervalSettings struct {
-	Level  float64 `json:"level"`
-	Method string  `json:"method"`
+	Level     float64 `json:"level"`
+	Method    string  `json:"method"`
+	Resamples int     `json:"resamples"`
 }
 
 type testSettings struct {
@@ -264,6 +274,7 @@ type testSettings struct {
 	Permutations int              `json:"permutations"`
 	Interval     intervalSettings `json:"interval"`
 	Adjust       string           `json:"adjust"`
+	Controls     []string         `json:"controls"`
 }
 
 type tableSettings struct {

@@ -21,6 +21,9 @@ const (
 	defaultLevel        = 0.95
 	defaultPermutations = 10000
 	maxPermutations     = 1_000_000_000
+	defaultResamples    = 2000 // Efron & Tibshirani (1993), An Introduction to the Bootstrap, ch. 19: ~1000+ for percentile ends
+	minResamples        = 100
+	maxResamples        = 100_000_000
 	defaultDigits       = 3
 	maxDigits           = 15 // float64 carries 15–17 significant digits
 )

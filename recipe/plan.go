@@ -129,12 +129,11 @@ func defaultTies() *Ties {
 type PMethod int
 
 const (
-	_           PMethod = iota
-	PAuto               // the engine picks; in this version always an asymptotic approximation
-	PAsymptotic         // a large-sample approximation (t or normal)
-	// TODO: PExact and PPermutation, once engine/stats has exact null
-	// distributions and seeded permutation streams; the recipe words
-	// "exact" and "permutation" are reserved for them and rejected for now.
+	_            PMethod = iota
+	PAuto                // per result, the most accurate method affordable (see engine)
+	PExact               // the exact null distribution, or all arrangements; permutations when neither is affordable
+	PAsymptotic          // a large-sample approximation (t or normal)
+	PPermutation         // Monte Carlo permutations, Permutations draws
 )
 
 // String returns the recipe word for the method.
@@ -142,8 +141,12 @@ func (m PMethod) String() string {
 	switch m {
 	case PAuto:
 		return "auto"
+	case PExact:
+		return "exact"
 	case PAsymptotic:
 		return "asymptotic"
+	case PPermutation:
+		return "permutation"
 	}
 	return fmt.Sprintf("PMethod(%d)", int(m))
 }
@@ -167,16 +170,30 @@ const (
 	//	                               (1957), Tests for rank correlation coefficients I,
 	//	                               Biometrika 44(3/4), 470–481.
 	//
-	// The bounds are transformed back with tanh.
+	// The bounds are transformed back with tanh. The other Kendall-type
+	// measures (kendall_a, kendall_c, gamma, Somers' d) have no such
+	// transform in common use; they get a Wald interval from their
+	// asymptotic standard error (engine/stats.OrdinalSE).
 	IntervalFisher
-	// TODO: bootstrap and BCa intervals ("bootstrap", "bca") need the seeded
-	// resampling streams of the engine; the words are reserved and rejected.
+	// IntervalBootstrap is the percentile interval of paired bootstrap
+	// resamples (B. Efron (1979), Bootstrap methods: another look at the
+	// jackknife, Annals of Statistics 7(1), 1–26).
+	IntervalBootstrap
+	// IntervalBCa is the bias-corrected and accelerated bootstrap interval
+	// (B. Efron (1987), Better bootstrap confidence intervals, JASA 82(397),
+	// 171–185).
+	IntervalBCa
 )
 
 // String returns the recipe word for the method.
 func (m IntervalMethod) String() string {
-	if m == IntervalFisher {
+	switch m {
+	case IntervalFisher:
 		return "fisher"
+	case IntervalBootstrap:
+		return "bootstrap"
+	case IntervalBCa:
+		return "bca"
 	}
 	return fmt.Sprintf("IntervalMethod(%d)", int(m))
 }
@@ -185,6 +202,7 @@ func (m IntervalMethod) String() string {
 type Interval struct {
 	Level     float64        // default 0.95, in (0, 1)
 	Method    IntervalMethod // default IntervalFisher
+	Resamples int            // bootstrap resamples; default 2000, used by bootstrap and bca
 	DeclRange hcl.Range      // the interval block, or the test's header when defaulted
 }
 
@@ -198,8 +216,14 @@ type Test struct {
 	Alternative  stats.Alternative // default stats.TwoSided
 	PValue       PMethod           // default PAuto
 	Interval     *Interval         // never nil: level 0.95, Fisher-type, by default
-	Permutations int               // default 10000; recorded, not yet used
-	Adjust       string            // multiplicity adjustment; only "none" for now
+	Permutations int               // Monte Carlo draws for permutation p-values; default 10000
+	Adjust       stats.Adjustment  // multiplicity adjustment over the test's results, per measure; default none
+
+	// Controls are the columns partialled out: with controls, spearman and
+	// pearson are partial correlations (ranks, or values, of the pairing's
+	// dataset after deleting rows missing any of x, y or a control).
+	Controls      []string
+	ControlRanges map[string]hcl.Range // where each control was written
 
 	DeclRange hcl.Range
 }

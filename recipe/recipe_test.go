@@ -99,7 +99,7 @@ func TestLoadOrchard(t *testing.T) {
 	}
 	ts := p.Tests[0]
 	if ts.Pairing != pr || ts.Ties != ties || ts.Alternative != stats.TwoSided || ts.PValue != PAuto ||
-		ts.Permutations != 20000 || ts.Adjust != "none" {
+		ts.Permutations != 20000 || ts.Adjust != stats.AdjustNone {
 		t.Errorf("test = %+v", ts)
 	}
 	if !reflect.DeepEqual(ts.Measures, []stats.Measure{stats.Spearman, stats.KendallB}) {
@@ -139,7 +139,7 @@ func TestLoadDefaults(t *testing.T) {
 	if ts.Ties == nil || !ts.Ties.Builtin || ts.Ties.Name != "average" || ts.Ties.Rule != stats.TieAverage || ts.Ties.MaxShare != 0.3 {
 		t.Errorf("Ties = %+v, want the built-in default", ts.Ties)
 	}
-	if ts.Alternative != stats.TwoSided || ts.PValue != PAuto || ts.Permutations != 10000 || ts.Adjust != "none" ||
+	if ts.Alternative != stats.TwoSided || ts.PValue != PAuto || ts.Permutations != 10000 || ts.Adjust != stats.AdjustNone ||
 		ts.Interval == nil || ts.Interval.Level != 0.95 || ts.Interval.Method != IntervalFisher {
 		t.Errorf("test = %+v, interval %+v", ts, ts.Interval)
 	}
@@ -320,22 +320,38 @@ pairing "p" {
   pairing     = "p"
   alternative = "two_sided"
 }`, []wantDiag{{11, 17, "Unknown alternative", `Did you mean "two-sided"?`}}},
-		{"exact p-value not yet", head + `test "t" {
-  pairing = "p"
-  p_value = "exact"
-}`, []wantDiag{{11, 13, "P-value method not available yet", "not available yet in this version (asymptotic p-values only)"}}},
 		{"unknown p-value method", head + `test "t" {
   pairing = "p"
   p_value = "asymptotc"
-}`, []wantDiag{{11, 13, "Unknown p-value method", `Did you mean "asymptotic"? Known methods: "auto", "asymptotic" (not available yet: "exact", "permutation").`}}},
+}`, []wantDiag{{11, 13, "Unknown p-value method", `Did you mean "asymptotic"? Known methods: "auto", "exact", "asymptotic", "permutation".`}}},
 		{"measures", head + `test "t" {
   pairing  = "p"
   measures = ["spearman", "kendal_b", "spearman", "gamma"]
 }`, []wantDiag{
 			{11, 27, "Unknown measure", `Did you mean "kendall_b"?`},
 			{11, 39, "Duplicate measure", `listed twice in measures (first at <test>.hcl:11:15)`},
-			{11, 51, "Measure not available yet", "spearman, kendall_b and pearson only"},
 		}},
+		{"somers both ways and one way", head + `test "t" {
+  pairing  = "p"
+  measures = ["somers_d", "somers_d_xy"]
+}`, []wantDiag{
+			{11, 27, "Duplicate measure", `"somers_d" at <test>.hcl:11:15 gives both somers_d_yx (y dependent) and somers_d_xy`},
+		}},
+		{"controls", head + `test "t" {
+  pairing  = "p"
+  measures = ["spearman", "gamma"]
+  p_value  = "permutation"
+  controls = ["age", "b", ""]
+}`, []wantDiag{
+			{13, 22, "Control is also paired", `"b" is paired in pairing "p" (at <test>.hcl:7:8)`},
+			{13, 27, "Empty column name", "controls must not be empty"},
+			{13, 14, "Measure has no partial form", `"gamma" has no partial form`},
+			{13, 14, "P-value method unavailable with controls", `p_value = "permutation" has no form for partial correlations`},
+		}},
+		{"empty controls", head + `test "t" {
+  pairing  = "p"
+  controls = []
+}`, []wantDiag{{11, 14, "Empty list", "controls must name at least one column"}}},
 		{"empty measures", head + `test "t" {
   pairing  = "p"
   measures = []
@@ -343,19 +359,21 @@ pairing "p" {
 		{"interval", head + `test "t" {
   pairing = "p"
   interval {
-    level  = 1
-    method = "bca"
+    level     = 1
+    method    = "bcaa"
+    resamples = 10
   }
   interval {}
 }`, []wantDiag{
-			{12, 14, "Value out of range", "level must be between 0 and 1, exclusive (for example 0.95); got 1."},
-			{13, 14, "Interval method not available yet", "Fisher-type intervals only"},
-			{15, 3, "Duplicate interval block", "the first is at <test>.hcl:11:3"},
+			{12, 17, "Value out of range", "level must be between 0 and 1, exclusive (for example 0.95); got 1."},
+			{13, 17, "Unknown interval method", `Did you mean "bca"? Known methods: "fisher", "bootstrap", "bca".`},
+			{14, 17, "Value out of range", "resamples must be"},
+			{16, 3, "Duplicate interval block", "the first is at <test>.hcl:11:3"},
 		}},
 		{"adjust", head + `test "t" {
   pairing = "p"
-  adjust  = "holm"
-}`, []wantDiag{{11, 13, "Adjustment not available yet", "no multiplicity adjustment yet"}}},
+  adjust  = "holmes"
+}`, []wantDiag{{11, 13, "Unknown adjustment", `Did you mean "holm"? Known adjustments: "none", "bonferroni", "holm", "hochberg", "hommel", "bh", "by".`}}},
 		{"missing rule", `dataset "d" {
   path = "d.csv"
 }
@@ -605,6 +623,9 @@ pairing "p" {
 }
 test "t" {
   pairing = "p"
+  interval {
+    resamples = 5000
+  }
 }
 table "x" {
   tests  = ["t"]
@@ -622,7 +643,7 @@ table "x" {
 		}
 		got = append(got, d.Summary)
 	}
-	want := []string{"Level is also a missing-value token", "Table format and file extension disagree"}
+	want := []string{"Level is also a missing-value token", "Resamples unused", "Table format and file extension disagree"}
 	if !reflect.DeepEqual(got, want) {
 		t.Errorf("warnings = %q, want %q", got, want)
 	}
@@ -686,5 +707,57 @@ func TestQuote(t *testing.T) {
 		if got := quote(in); got != want {
 			t.Errorf("quote(%q) = %s, want %s", in, got, want)
 		}
+	}
+}
+
+// TestInferenceSettings checks that every inference word reaches the plan:
+// somers_d expands to both directions, and controls keep their ranges so the
+// engine can point at them.
+func TestInferenceSettings(t *testing.T) {
+	src := `dataset "d" {
+  path = "d.csv"
+}
+pairing "p" {
+  dataset = "d"
+  x = ["a"]
+  y = ["b"]
+}
+test "ordinal" {
+  pairing  = "p"
+  measures = ["somers_d", "gamma", "kendall_a", "kendall_c"]
+  p_value  = "exact"
+  adjust   = "holm"
+  interval {
+    method    = "bca"
+    resamples = 999
+  }
+}
+test "partial" {
+  pairing  = "p"
+  measures = ["spearman", "pearson"]
+  p_value  = "asymptotic"
+  adjust   = "by"
+  controls = ["age", "site"]
+}`
+	plan, diags := Parse([]byte(src), "i.hcl")
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	o, p := plan.Tests[0], plan.Tests[1]
+	wantM := []stats.Measure{stats.SomersDYX, stats.SomersDXY, stats.Gamma, stats.KendallA, stats.KendallC}
+	if !reflect.DeepEqual(o.Measures, wantM) {
+		t.Errorf("measures = %v, want %v", o.Measures, wantM)
+	}
+	if o.PValue != PExact || o.Adjust != stats.Holm || o.Interval.Method != IntervalBCa || o.Interval.Resamples != 999 {
+		t.Errorf("ordinal test = %+v, interval %+v", o, o.Interval)
+	}
+	if p.PValue != PAsymptotic || p.Adjust != stats.BY || !reflect.DeepEqual(p.Controls, []string{"age", "site"}) {
+		t.Errorf("partial test = %+v", p)
+	}
+	if r := p.ControlRanges["site"]; r.Start.Line != 24 || r.Start.Column != 22 {
+		t.Errorf("site range = %v, want line 24 col 22", r)
+	}
+	if p.Interval.Method != IntervalFisher || p.Interval.Resamples != defaultResamples {
+		t.Errorf("default interval = %+v", p.Interval)
 	}
 }

@@ -22,23 +22,16 @@ var (
 	alternatives = &vocab{noun: "alternative", plural: "alternatives",
 		words: []string{"two-sided", "greater", "less"}}
 	pMethods = &vocab{noun: "p-value method", plural: "methods",
-		words: []string{"auto", "asymptotic"},
-		later: []string{"exact", "permutation"},
-		only:  "asymptotic p-values only"}
+		words: []string{"auto", "exact", "asymptotic", "permutation"}}
 	measureWords = &vocab{noun: "measure", plural: "measures",
-		words: []string{"spearman", "kendall_b", "pearson"},
-		later: []string{"kendall_a", "kendall_c", "gamma", "somers_d"},
-		only:  "spearman, kendall_b and pearson only"}
+		words: []string{"spearman", "kendall_b", "kendall_a", "kendall_c", "gamma",
+			"somers_d", "somers_d_yx", "somers_d_xy", "pearson"}}
 	missingRules = &vocab{noun: "missing-value rule", plural: "rules",
 		words: []string{"pairwise", "listwise"}}
 	intervalMethods = &vocab{noun: "interval method", plural: "methods",
-		words: []string{"fisher"},
-		later: []string{"bootstrap", "bca"},
-		only:  "Fisher-type intervals only"}
+		words: []string{"fisher", "bootstrap", "bca"}}
 	adjustMethods = &vocab{noun: "adjustment", plural: "adjustments",
-		words: []string{"none"},
-		later: []string{"bonferroni", "holm", "hochberg", "hommel", "bh", "by"},
-		only:  "no multiplicity adjustment yet"}
+		words: []string{"none", "bonferroni", "holm", "hochberg", "hommel", "bh", "by"}}
 	dataFormats = &vocab{noun: "dataset format", plural: "formats",
 		words: []string{"csv", "tsv", "parquet"}}
 	tableFormats = &vocab{noun: "table format", plural: "formats",
