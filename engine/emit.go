@@ -35,7 +35,7 @@ func fullTable(title string, rows []Result) *render.Table {
 			render.Text(r.PMethod), render.Real(r.CILow), render.Real(r.CIHigh),
 			render.Real(r.CILevel), render.Text(r.CIMethod), render.Prob(r.PAdjusted),
 			render.Text(r.AdjustMethod), render.Real(r.TiesX), render.Real(r.TiesY),
-			render.List(r.Warnings),
+			render.List(r.Warnings), render.List(r.Controls),
 		})
 	}
 	return t
@@ -49,8 +49,14 @@ func fullTable(title string, rows []Result) *render.Table {
 func readableTable(title string, rows []Result) *render.Table {
 	level, sameLevel := commonLevel(rows)
 	oneSided := slices.ContainsFunc(rows, func(r Result) bool { return r.Alternative != stats.TwoSided.String() })
+	adjusted := slices.ContainsFunc(rows, func(r Result) bool { return r.AdjustMethod != stats.AdjustNone.String() })
+	partial := slices.ContainsFunc(rows, func(r Result) bool { return len(r.Controls) > 0 })
 
-	cols := []string{"test", "x", "y", "group", "measure", "n", "estimate"}
+	cols := []string{"test", "x", "y", "group", "measure"}
+	if partial {
+		cols = append(cols, "controls")
+	}
+	cols = append(cols, "n", "estimate")
 	if sameLevel {
 		cols = append(cols, render.Percent(level)+"% CI")
 	} else {
@@ -59,7 +65,11 @@ func readableTable(title string, rows []Result) *render.Table {
 	if oneSided {
 		cols = append(cols, "alternative")
 	}
-	cols = append(cols, "p", "p method", "notes")
+	cols = append(cols, "p", "p method")
+	if adjusted {
+		cols = append(cols, adjustedHeader(rows))
+	}
+	cols = append(cols, "notes")
 	t := &render.Table{Title: title, Columns: cols}
 
 	noteIndex := map[string]int{}
@@ -76,22 +86,49 @@ func readableTable(title string, rows []Result) *render.Table {
 		}
 		row := []render.Cell{
 			render.Text(r.Test), render.Text(r.X), render.Text(r.Y), render.Text(r.Group),
-			render.Text(r.Measure), render.Int(int64(r.N)), render.Real(r.Estimate),
-			render.Interval(r.CILow, r.CIHigh),
+			render.Text(r.Measure),
 		}
+		if partial {
+			row = append(row, render.List(r.Controls))
+		}
+		row = append(row, render.Int(int64(r.N)), render.Real(r.Estimate), render.Interval(r.CILow, r.CIHigh))
 		if !sameLevel {
 			row = append(row, render.Text(render.Percent(r.CILevel)+"%"))
 		}
 		if oneSided {
 			row = append(row, render.Text(r.Alternative))
 		}
-		row = append(row, render.Prob(r.PValue), render.Text(r.PMethod), render.List(refs))
+		row = append(row, render.Prob(r.PValue), render.Text(r.PMethod))
+		if adjusted {
+			adj := render.Prob(r.PAdjusted)
+			if r.AdjustMethod == stats.AdjustNone.String() {
+				adj = render.Text("")
+			}
+			row = append(row, adj)
+		}
+		row = append(row, render.List(refs))
 		t.Rows = append(t.Rows, row)
 	}
 	for i := range t.Notes {
 		t.Notes[i] = fmt.Sprintf("[%d] %s", i+1, t.Notes[i])
 	}
 	return t
+}
+
+// adjustedHeader names the adjusted p-value column after its method when
+// every adjusted row shares one, e.g. "p adjusted (holm)".
+func adjustedHeader(rows []Result) string {
+	method := ""
+	for _, r := range rows {
+		switch {
+		case r.AdjustMethod == stats.AdjustNone.String():
+		case method == "":
+			method = r.AdjustMethod
+		case method != r.AdjustMethod:
+			return "p adjusted"
+		}
+	}
+	return "p adjusted (" + method + ")"
 }
 
 func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, error) {
@@ -144,7 +181,7 @@ func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, result
 	inHash, err := ledger.Hash(struct {
 		Test     any            `json:"test"`
 		Datasets []ledger.Input `json:"datasets"`
-	}{testSettings(t), data})
+	}{testSettings(t, plan.Seed), data})
 	if err != nil {
 		return ledger.Step{}, fmt.Errorf("hash inputs of test %q: %w", t.Name, err)
 	}
@@ -252,7 +289,7 @@ func version(o Options) string {
 // testSettings is the resolved description of a test that its step hash
 // covers: everything that can change its numbers, including how each of its
 // columns is read (kind, levels in order) and which tokens mean missing.
-func testSettings(t *recipe.Test) any {
+func testSettings(t *recipe.Test, seed int64) any {
 	p := t.Pairing
 	measures := make([]string, len(t.Measures))
 	for i, m := range t.Measures {
@@ -268,26 +305,35 @@ func testSettings(t *recipe.Test) any {
 		c := valueSpec(p.Dataset, name)
 		columns = append(columns, column{c.Name, c.Kind.String(), c.Levels})
 	}
+	for _, name := range t.Controls {
+		c := valueSpec(p.Dataset, name)
+		columns = append(columns, column{c.Name, c.Kind.String(), c.Levels})
+	}
 	if p.By != "" {
 		columns = append(columns, column{p.By, dataset.Label.String(), nil})
 	}
 	return struct {
-		Name        string        `json:"name"`
-		Dataset     string        `json:"dataset"`
-		Columns     []column      `json:"columns"`
-		MissingAs   []string      `json:"missing_tokens"`
-		Pairs       []recipe.Pair `json:"pairs"`
-		Missing     string        `json:"missing"`
-		By          string        `json:"by"`
-		TieRule     string        `json:"tie_rule"`
-		MaxShare    float64       `json:"max_share"`
-		Measures    []string      `json:"measures"`
-		Alternative string        `json:"alternative"`
-		PValue      string        `json:"p_value"`
-		Level       float64       `json:"interval_level"`
-		Interval    string        `json:"interval_method"`
-		Adjust      string        `json:"adjust"`
+		Name         string        `json:"name"`
+		Dataset      string        `json:"dataset"`
+		Columns      []column      `json:"columns"`
+		MissingAs    []string      `json:"missing_tokens"`
+		Pairs        []recipe.Pair `json:"pairs"`
+		Missing      string        `json:"missing"`
+		By           string        `json:"by"`
+		Controls     []string      `json:"controls"`
+		TieRule      string        `json:"tie_rule"`
+		MaxShare     float64       `json:"max_share"`
+		Measures     []string      `json:"measures"`
+		Alternative  string        `json:"alternative"`
+		PValue       string        `json:"p_value"`
+		Permutations int           `json:"permutations"`
+		Seed         int64         `json:"seed"`
+		Level        float64       `json:"interval_level"`
+		Interval     string        `json:"interval_method"`
+		Resamples    int           `json:"resamples"`
+		Adjust       string        `json:"adjust"`
 	}{t.Name, p.Dataset.Name, columns, p.Dataset.Missing, p.Pairs, p.Missing.String(), p.By,
-		t.Ties.Rule.String(), t.Ties.MaxShare, measures, t.Alternative.String(), t.PValue.String(),
-		t.Interval.Level, t.Interval.Method.String(), t.Adjust}
+		nonNilStrings(t.Controls), t.Ties.Rule.String(), t.Ties.MaxShare, measures, t.Alternative.String(),
+		t.PValue.String(), t.Permutations, seed, t.Interval.Level, t.Interval.Method.String(),
+		t.Interval.Resamples, t.Adjust.String()}
 }

@@ -117,18 +117,22 @@ pairing "load_temp" {
 test "a" {
   pairing  = "temp_alarm"
   measures = ["spearman", "kendall_b", "pearson"]
+  p_value  = "asymptotic" # R's reference p-values are t and normal
 }
 test "b" {
   pairing  = "humidity_alarm"
   measures = ["spearman", "kendall_b", "pearson"]
+  p_value  = "asymptotic" # R's reference p-values are t and normal
 }
 test "c" {
   pairing  = "temp_humidity"
   measures = ["spearman", "kendall_b", "pearson"]
+  p_value  = "asymptotic" # R's reference p-values are t and normal
 }
 test "d" {
   pairing  = "load_temp"
   measures = ["spearman", "kendall_b", "pearson"]
+  p_value  = "asymptotic" # R's reference p-values are t and normal
 }
 table "all" {
   tests = ["a", "b", "c", "d"]

@@ -85,6 +85,14 @@ func Check(plan *recipe.Plan) hcl.Diagnostics {
 				unknown(p.By, p.ColumnRanges[p.By], "grouping column")
 			}
 		}
+		for _, t := range plan.Tests {
+			if t.Pairing.Dataset != ds {
+				continue
+			}
+			for _, name := range t.Controls {
+				unknown(name, t.ControlRanges[name], "control column")
+			}
+		}
 		if len(diags) > before {
 			continue
 		}
@@ -219,6 +227,9 @@ func datasetSpec(plan *recipe.Plan, ds *recipe.Dataset) (dataset.Spec, bool) {
 		for _, name := range pairingColumns(p) {
 			add(valueSpec(ds, name))
 		}
+		for _, name := range t.Controls {
+			add(valueSpec(ds, name))
+		}
 	}
 	// A column may also group another pairing: it is then read a second
 	// time, as labels.
@@ -259,11 +270,19 @@ func cellDiagnostic(plan *recipe.Plan, ds *recipe.Dataset, ce *dataset.CellError
 }
 
 // columnRange is where the recipe names column of ds: the first pairing
-// that lists it, else the dataset block (a whole-row problem has no column).
+// that lists it, else the first test that controls for it, else the dataset
+// block (a whole-row problem has no column).
 func columnRange(plan *recipe.Plan, ds *recipe.Dataset, column string) hcl.Range {
 	for _, p := range plan.Pairings {
 		if p.Dataset == ds {
 			if r, ok := p.ColumnRanges[column]; ok {
+				return r
+			}
+		}
+	}
+	for _, t := range plan.Tests {
+		if t.Pairing.Dataset == ds {
+			if r, ok := t.ControlRanges[column]; ok {
 				return r
 			}
 		}

@@ -1,18 +1,22 @@
 package engine
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"concordat/engine/stats"
 	"concordat/recipe"
 )
 
 // sample is one (test, pair, group) cell of work: the paired, complete
-// observations and how many rows of the group were dropped and why.
+// observations (and controls, when the test has any) and how many rows of
+// the group were dropped and why.
 type sample struct {
 	x, y      []float64
+	z         [][]float64 // one slice per control, same length as x
 	dropped   int
 	dropNote  string // why rows were dropped, "" when none were
 	groupNote string // about the group itself (rows without a group label), or ""
@@ -23,113 +27,150 @@ type sample struct {
 // practice).
 const minPairs = 3
 
-// smallN is the sample size below which the asymptotic p-values of rho (t)
-// and tau (normal) are flagged: the exact null distributions are discrete
-// and far from their approximations there (common practice; e.g. at n = 4
-// the smallest attainable exact two-sided p of rho is 1/12, while the t
-// approximation gives 0 for rho = 1).
+// smallN is the sample size below which a test of association has little
+// power whatever its p-value method: at n = 9 a two-sided 5% test of rho
+// needs |rho| ≥ 0.70 (the exact null; Zar 1972, Table 1), so a moderate
+// association cannot reach significance. Below it an asymptotic p-value can
+// also be far from the exact one (common practice).
 const smallN = 10
 
-// measureSample computes every measure of test t on one sample, in the
-// order the recipe lists them.
-func measureSample(t *recipe.Test, pair recipe.Pair, group string, s sample) []Result {
-	n := len(s.x)
-	out := make([]Result, 0, len(t.Measures))
+// cellEnv is what measuring one cell needs beyond the recipe and its
+// sample: cancellation, the seed the resampling streams derive from, the
+// workers a resampling may use, and the progress counter.
+type cellEnv struct {
+	ctx      context.Context
+	seed     int64
+	workers  int
+	progress *progress // nil: no progress shown
+}
 
-	var shareX, shareY float64 = math.NaN(), math.NaN()
+// cellInput is one cell: where its results go in the tables and its data.
+type cellInput struct {
+	test  *recipe.Test
+	pair  recipe.Pair
+	group string
+	s     sample
+}
+
+// measureSample computes every measure of the cell's test on its sample,
+// in the order the recipe lists them. The p-value method of each result
+// is chosen by pMethodFor; resampling (permutations, bootstrap) uses
+// streams keyed by the seed, the test, the pair and the group, so neither
+// the worker count nor the order of the cells can change a number.
+func measureSample(env cellEnv, c cellInput) ([]Result, error) {
+	t, pair, s := c.test, c.pair, c.s
+	n := len(s.x)
+	k := len(s.z)
+	level := t.Interval.Level
+
+	shareX, shareY := math.NaN(), math.NaN()
 	if n > 0 {
 		shareX, shareY = stats.TieShare(s.x), stats.TieShare(s.y)
 	}
-	common := func() []string {
-		w := commonNotes(s)
-		if n < minPairs {
-			w = append(w, fmt.Sprintf("n = %d is too few pairs: at least %d are needed, so the estimate is undefined", n, minPairs))
-			return w
-		}
+	tied := shareX > 0 || shareY > 0
+
+	// Notes every result of the cell shares.
+	base := commonNotes(s)
+	defined := n >= minPairs
+	if !defined {
+		base = append(base, fmt.Sprintf("n = %d is too few pairs: at least %d are needed, so the estimate is undefined", n, minPairs))
+	} else {
 		ds := t.Pairing.Dataset
-		if c, v := constant(s.x); c {
-			w = append(w, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.X, n, valueText(ds, pair.X, v)))
+		if cst, v := constant(s.x); cst {
+			base = append(base, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.X, n, valueText(ds, pair.X, v)))
+			defined = false
 		}
-		if c, v := constant(s.y); c {
-			w = append(w, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.Y, n, valueText(ds, pair.Y, v)))
+		if cst, v := constant(s.y); cst {
+			base = append(base, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.Y, n, valueText(ds, pair.Y, v)))
+			defined = false
 		}
-		return w
+		if n-2-k < 1 {
+			base = append(base, fmt.Sprintf("n = %d is too few pairs for %d %s: a partial correlation needs n > %d", n, k, pluralWord(k, "control", "controls"), k+2))
+			defined = false
+		}
+	}
+	if defined {
+		base = append(base, monotoneNote(s)...)
 	}
 
+	results := make([]Result, len(t.Measures))
+	methods := make([]pChoice, len(t.Measures))
 	var counts *stats.PairCounts // Kendall's pair counts, computed once
-	level := t.Interval.Level
-
-	for _, m := range t.Measures {
+	for i, m := range t.Measures {
 		r := Result{
-			Test: t.Name, X: pair.X, Y: pair.Y, Group: group, Measure: m.String(),
+			Test: t.Name, X: pair.X, Y: pair.Y, Group: c.group, Measure: m.String(),
 			N: n, NDropped: s.dropped, Alternative: t.Alternative.String(),
 			Estimate: math.NaN(), PValue: math.NaN(), CILow: math.NaN(), CIHigh: math.NaN(),
-			CILevel: level, PAdjusted: math.NaN(), AdjustMethod: t.Adjust,
-			TiesX: shareX, TiesY: shareY,
+			CILevel: level, PAdjusted: math.NaN(), AdjustMethod: t.Adjust.String(),
+			TiesX: shareX, TiesY: shareY, Controls: nonNilStrings(t.Controls),
+			CIMethod: intervalName(t, m),
 		}
-		r.Warnings = common()
-		switch m {
-		case stats.Spearman:
-			r.PMethod, r.CIMethod = stats.PT.String(), "bonett-wright"
-		case stats.KendallB:
-			r.PMethod, r.CIMethod = stats.PNormal.String(), "fieller"
-		case stats.PearsonR:
-			r.PMethod, r.CIMethod = stats.PT.String(), "fisher"
-		default:
-			panic(fmt.Sprintf("engine: measure %v has no kernel", m))
-		}
-		if n >= minPairs {
-			switch m {
-			case stats.Spearman:
+		r.Warnings = slices.Clone(base)
+		methods[i] = pMethodFor(t, m, s, tied)
+		r.PMethod = methods[i].method.String()
+		if defined {
+			if m == stats.Spearman {
 				r.Warnings = append(r.Warnings, tieWarnings(t, pair, n, shareX, shareY)...)
-				if t.Ties.Rule != stats.TieAverage && (shareX > 0 || shareY > 0) {
+				if t.Ties.Rule != stats.TieAverage && tied {
 					r.Warnings = append(r.Warnings, fmt.Sprintf(
 						"ranks use the %q tie rule: with ties this is not Spearman's rho with midranks, and its p-value and interval assume average ranks",
 						t.Ties.Rule.String()))
 				}
-				r.Estimate = stats.SpearmanRho(s.x, s.y, t.Ties.Rule)
-				r.PValue = stats.CorrelationT(r.Estimate, n, t.Alternative)
-				r.CILow, r.CIHigh = stats.BonettWrightInterval(r.Estimate, n, level, t.Alternative)
-			case stats.KendallB:
-				// Kendall's tau-b depends only on the order of the values,
-				// so it is computed on them directly: breaking ties by a
-				// rank rule (such as "first") would hide the very ties
-				// tau-b corrects for.
-				if counts == nil {
-					c := stats.CountPairs(s.x, s.y)
-					counts = &c
-				}
-				r.Estimate = counts.TauB()
-				r.PValue = stats.KendallNormal(*counts, t.Alternative)
-				r.CILow, r.CIHigh = stats.FiellerInterval(r.Estimate, n, level, t.Alternative)
-			case stats.PearsonR:
-				if hasInf(s.x) || hasInf(s.y) {
-					r.Warnings = append(r.Warnings, "infinite values present: Pearson's r is undefined (rank measures treat them as extreme values)")
-				} else {
-					r.Estimate = stats.Pearson(s.x, s.y)
-					r.PValue = stats.CorrelationT(r.Estimate, n, t.Alternative)
-					r.CILow, r.CIHigh = stats.FisherInterval(r.Estimate, n, level, t.Alternative)
-				}
 			}
-			r.Warnings = append(r.Warnings, inferenceWarnings(m, &r, shareX > 0 || shareY > 0)...)
+			switch {
+			case m == stats.Spearman && k > 0:
+				r.Estimate = stats.PartialSpearman(s.x, s.y, s.z, t.Ties.Rule)
+			case m == stats.Spearman:
+				r.Estimate = stats.SpearmanRho(s.x, s.y, t.Ties.Rule)
+			case m == stats.PearsonR && (hasInf(s.x) || hasInf(s.y) || anyInf(s.z)):
+				r.Warnings = append(r.Warnings, "infinite values present: Pearson's r is undefined (rank measures treat them as extreme values)")
+			case m == stats.PearsonR && k > 0:
+				r.Estimate = stats.PartialCorrelation(s.x, s.y, s.z)
+			case m == stats.PearsonR:
+				r.Estimate = stats.Pearson(s.x, s.y)
+			default: // the Kendall family, on the values themselves
+				// Kendall-type measures depend only on the order of the
+				// values, so they are computed on them directly: breaking
+				// ties by a rank rule (such as "first") would hide the
+				// very ties they correct for.
+				if counts == nil {
+					pc := stats.CountPairs(s.x, s.y)
+					counts = &pc
+				}
+				r.Estimate = counts.Estimate(m)
+			}
 		}
-		if math.IsNaN(r.Estimate) {
+		results[i] = r
+	}
+
+	if err := pValues(env, c, results, methods, counts); err != nil {
+		return nil, err
+	}
+	if err := intervals(env, c, results); err != nil {
+		return nil, err
+	}
+
+	for i := range results {
+		r := &results[i]
+		m := t.Measures[i]
+		if !math.IsNaN(r.Estimate) {
+			r.Warnings = append(r.Warnings, inferenceWarnings(t, m, r, methods[i], tied)...)
+		} else {
 			r.PValue, r.CILow, r.CIHigh = math.NaN(), math.NaN(), math.NaN()
 			if len(r.Warnings) == len(commonNotes(s)) {
 				// Every undefined value says why; this is the catch-all.
 				r.Warnings = append(r.Warnings, "the estimate is undefined for these data")
 			}
 		}
-		if t.Adjust == "none" {
+		if t.Adjust == stats.AdjustNone {
 			// No family adjustment: the adjusted p-value is the p-value.
 			r.PAdjusted = r.PValue
 		}
 		if r.Warnings == nil {
 			r.Warnings = []string{}
 		}
-		out = append(out, r)
 	}
-	return out
+	return results, nil
 }
 
 // commonNotes are the notes every result of a sample carries whatever the
@@ -146,41 +187,71 @@ func commonNotes(s sample) []string {
 	return w
 }
 
-// inferenceWarnings flags p-values and intervals that the asymptotic
-// methods cannot be trusted for. A rank measure's asymptotic p-value that
-// falls below the smallest p-value any exact permutation test could give
-// at this n is withheld (set to NaN), because no exact analysis could
-// support it.
-func inferenceWarnings(m stats.Measure, r *Result, tied bool) []string {
-	var w []string
-	if math.IsNaN(r.Estimate) {
+// monotoneNote warns when the relation between x and y is clearly not
+// monotone (a U or an inverted U), so that a coefficient near 0 is not read
+// as "no relation". The criterion is stats.CheckMonotone's.
+func monotoneNote(s sample) []string {
+	mc := stats.CheckMonotone(s.x, s.y)
+	if !mc.Applicable || !mc.NonMonotone {
 		return nil
 	}
+	return []string{fmt.Sprintf(
+		"the relation is not monotone: the best monotone fit explains %.0f%% of the rank variance of y, a fit that can bend %.0f%%; a rank correlation understates such a relation (e.g. a U shape), so look at the scatter before reading it",
+		100*mc.R2Monotone, 100*mc.R2Free)}
+}
+
+// inferenceWarnings flags p-values and intervals that cannot be taken at
+// face value. An asymptotic p-value of a rank measure that falls below the
+// smallest p-value any exact permutation test could give at this n is
+// withheld (set to NaN), because no exact analysis could support it.
+func inferenceWarnings(t *recipe.Test, m stats.Measure, r *Result, pc pChoice, tied bool) []string {
+	var w []string
 	interval := !math.IsNaN(r.CILow) || !math.IsNaN(r.CIHigh)
 	if math.Abs(r.Estimate) == 1 {
 		msg := "a perfect association in the sample"
 		if interval {
 			msg += ": the interval collapses to a point"
 		}
-		if r.PMethod == stats.PT.String() {
+		if pc.method == stats.PT && len(t.Controls) == 0 {
 			msg += "; the t approximation's p-value is its limit, 0"
 		}
 		w = append(w, msg)
 	}
-	if m != stats.PearsonR && r.N < smallN && !math.IsNaN(r.PValue) {
+	w = append(w, pc.notes...)
+	asymptotic := pc.method == stats.PT || pc.method == stats.PNormal
+	switch {
+	case r.N >= smallN:
+	case asymptotic && m != stats.PearsonR && len(t.Controls) == 0 && !math.IsNaN(r.PValue):
 		floor := exactFloor(r.N, r.Alternative == stats.TwoSided.String() && !tied)
 		if r.PValue < floor {
-			w = append(w, fmt.Sprintf("the %s approximation gives p = %.2g, below %.2g, the smallest exact p-value attainable with n = %d pairs: the p-value is withheld (exact p-values are not available in this version)",
+			w = append(w, fmt.Sprintf("the %s approximation gives p = %.2g, below %.2g, the smallest exact p-value attainable with n = %d pairs: the p-value is withheld (p_value = \"auto\" or \"exact\" gives the exact one)",
 				r.PMethod, r.PValue, floor, r.N))
 			r.PValue = math.NaN()
 		} else {
-			w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can differ noticeably from the exact one (exact p-values are not available in this version)", r.N, r.PMethod))
+			w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can differ noticeably from the exact one (p_value = \"auto\" or \"exact\" gives the exact one)", r.N, r.PMethod))
 		}
+	case pc.method == stats.PExact:
+		w = append(w, fmt.Sprintf("n = %d is small: the p-value is exact, but the test has little power, so only a strong association can reach significance", r.N))
+	default:
+		w = append(w, fmt.Sprintf("n = %d is small: the test has little power, so only a strong association can reach significance", r.N))
 	}
-	if !interval {
-		w = append(w, fmt.Sprintf("n = %d is too few for the %s interval (needs n ≥ %d)", r.N, r.CIMethod, intervalMinN(m)))
+	if r.PValue == 0 && pc.method == stats.PExact {
+		w = append(w, "the exact p-value is below 1e-308, the smallest number the result record can hold; it is written as 0")
+	}
+	if !interval && t.Interval.Method == recipe.IntervalFisher {
+		// (A bootstrap interval that failed has said why already.)
+		w = append(w, intervalGap(t, m, r))
 	}
 	return w
+}
+
+// intervalGap says why a result with an estimate has no Fisher-type
+// interval.
+func intervalGap(t *recipe.Test, m stats.Measure, r *Result) string {
+	if need := intervalMinN(t, m); r.N < need {
+		return fmt.Sprintf("n = %d is too few for the %s interval (needs n ≥ %d)", r.N, r.CIMethod, need)
+	}
+	return fmt.Sprintf("the %s interval is undefined here: its standard error cannot be estimated from these data", r.CIMethod)
 }
 
 // exactFloor is the smallest p-value an exact permutation test of a rank
@@ -200,21 +271,14 @@ func exactFloor(n int, mirrored bool) float64 {
 	return 1 / f
 }
 
-// intervalMinN is the smallest n for which each interval's standard error is
-// finite: n − 3 > 0 for Fisher z and Bonett–Wright, n − 4 > 0 for Fieller.
-func intervalMinN(m stats.Measure) int {
-	if m == stats.KendallB {
-		return 5
-	}
-	return 4
-}
-
 // tieWarnings flags columns with more tied values than the test's ties
 // block allows, suggesting Kendall's tau-b when the test does not already
 // report it.
 func tieWarnings(t *recipe.Test, pair recipe.Pair, n int, sx, sy float64) []string {
 	var w []string
-	hasTauB := slices.Contains(t.Measures, stats.KendallB)
+	// Kendall's measures have no partial form, so with controls there is
+	// nothing to suggest.
+	hasTauB := slices.Contains(t.Measures, stats.KendallB) || len(t.Controls) > 0
 	for _, side := range []struct {
 		name  string
 		share float64
@@ -254,6 +318,24 @@ func hasInf(v []float64) bool {
 	return false
 }
 
+func anyInf(z [][]float64) bool {
+	return slices.ContainsFunc(z, hasInf)
+}
+
+func nonNilStrings(s []string) []string {
+	if s == nil {
+		return []string{}
+	}
+	return s
+}
+
+func pluralWord(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
 // valueText shows a value as the data wrote it: an ordinal code as its
 // label, a number in shortest form.
 func valueText(ds *recipe.Dataset, column string, v float64) string {
@@ -261,4 +343,25 @@ func valueText(ds *recipe.Dataset, column string, v float64) string {
 		return fmt.Sprintf("%q", lv[int(v)-1])
 	}
 	return fmt.Sprintf("%g", v)
+}
+
+// isKendall reports whether m is one of the measures computed from
+// Kendall's pair counts.
+func isKendall(m stats.Measure) bool {
+	switch m {
+	case stats.KendallA, stats.KendallB, stats.KendallC, stats.Gamma, stats.SomersDYX, stats.SomersDXY:
+		return true
+	}
+	return false
+}
+
+// joinAnd writes "a", "a and b", "a, b and c".
+func joinAnd(items []string) string {
+	switch len(items) {
+	case 0:
+		return ""
+	case 1:
+		return items[0]
+	}
+	return strings.Join(items[:len(items)-1], ", ") + " and " + items[len(items)-1]
 }

@@ -25,27 +25,37 @@ func TestNotesTellTheReaderWhatToDistrust(t *testing.T) {
 		ordinal  bool     // y holds the labels poor < fair < good
 	}{
 		{
-			name: "perfect_n4_spearman", measure: "spearman",
+			name: "perfect_n4_spearman", measure: "spearman", test: `p_value = "asymptotic"`,
 			data:  "x,y\n1,10\n2,20\n3,30\n4,40\n",
 			want:  []string{"perfect association", "collapses to a point", "limit, 0", "below 0.083", "withheld"},
 			pNull: true, estimate: 1,
 		},
 		{
-			name: "perfect_n4_kendall", measure: "kendall_b", test: `measures = ["kendall_b"]`,
+			name: "perfect_n4_kendall", measure: "kendall_b", test: `measures = ["kendall_b"]
+  p_value = "asymptotic"`,
 			data:   "x,y\n1,10\n2,20\n3,30\n4,40\n",
 			want:   []string{"perfect association", "normal approximation gives p = 0.042", "withheld", "too few for the fieller interval"},
 			absent: []string{"limit, 0", "collapses"},
 			pNull:  true, estimate: 1,
 		},
 		{
-			name: "perfect_n3_no_interval", measure: "spearman",
+			name: "perfect_n3_no_interval", measure: "spearman", test: `p_value = "asymptotic"`,
 			data:   "x,y\n1,10\n2,20\n3,30\n",
 			want:   []string{"perfect association", "too few for the bonett-wright interval"},
 			absent: []string{"collapses"},
 			pNull:  true, estimate: 1,
 		},
 		{
-			name: "small_n_kept", measure: "spearman",
+			// The exact p of rho = 1 at n = 4 is 2/4! = 0.0833 (counting
+			// permutations); auto computes it instead of withholding t's 0.
+			name: "perfect_n4_auto_is_exact", measure: "spearman",
+			data:     "x,y\n1,10\n2,20\n3,30\n4,40\n",
+			want:     []string{"perfect association", "the p-value is exact, but the test has little power"},
+			absent:   []string{"withheld", "limit, 0"},
+			estimate: 1,
+		},
+		{
+			name: "small_n_kept", measure: "spearman", test: `p_value = "asymptotic"`,
 			data:     "x,y\n1,2\n2,1\n3,4\n4,3\n5,6\n6,5\n7,8\n",
 			want:     []string{"n = 7 is small"},
 			absent:   []string{"withheld", "perfect"},

@@ -24,6 +24,7 @@ type Result struct {
 	TiesX        float64  `json:"ties_x"` // share of x values that share their value with another
 	TiesY        float64  `json:"ties_y"`
 	Warnings     []string `json:"warnings"`
+	Controls     []string `json:"controls"` // columns partialled out; empty for a plain correlation
 }
 
 // recordColumns are the result record's keys in contract order. Add keys at
@@ -32,4 +33,5 @@ var recordColumns = []string{
 	"test", "x", "y", "group", "measure", "n", "n_dropped", "estimate",
 	"alternative", "p_value", "p_method", "ci_low", "ci_high", "ci_level",
 	"ci_method", "p_adjusted", "adjust_method", "ties_x", "ties_y", "warnings",
+	"controls",
 }

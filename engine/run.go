@@ -29,6 +29,10 @@ type Options struct {
 	Version string           // tool version written to the ledger; "" means "devel"
 	Now     func() time.Time // clock for the ledger's recorded (never hashed) times
 	Stderr  io.Writer        // where warnings about the run itself go; nil means os.Stderr
+
+	// Progress, when not nil, receives a progress line that is redrawn in
+	// place (meant for a terminal); nil shows none.
+	Progress io.Writer
 }
 
 func (o Options) stderr() io.Writer {
@@ -98,13 +102,12 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 
 	// Lay out the cells of work in recipe order, then fill them concurrently.
 	type cell struct {
-		test  *recipe.Test
-		pair  recipe.Pair
-		group string
-		out   []Result
+		in   cellInput
+		rows []int // the group's rows, nil for every row
+		note string
+		out  []Result
 	}
 	var cells []*cell
-	samples := map[*cell]func() sample{}
 	groupsOf := map[*recipe.Pairing][]group{}
 	var diags hcl.Diagnostics
 	for _, p := range plan.Pairings {
@@ -120,32 +123,34 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		return nil, &DiagnosticsError{Diags: diags, Data: true}
 	}
 	for _, t := range plan.Tests {
-		tbl := tables[t.Pairing.Dataset.Name]
-		groups := groupsOf[t.Pairing]
 		for _, pair := range t.Pairing.Pairs {
-			for _, g := range groups {
-				c := &cell{test: t, pair: pair, group: g.name}
-				cells = append(cells, c)
-				p, g := t.Pairing, g
-				samples[c] = func() sample {
-					s := pairUp(tbl, p, pair, g.rows)
-					s.groupNote = g.note
-					return s
-				}
+			for _, g := range groupsOf[t.Pairing] {
+				cells = append(cells, &cell{
+					in:   cellInput{test: t, pair: pair, group: g.name},
+					rows: g.rows, note: g.note,
+				})
 			}
 		}
 	}
 
+	prog := newProgress(opts.Progress, len(cells))
+	defer prog.finish()
 	eg, ectx := errgroup.WithContext(ctx)
 	eg.SetLimit(opts.jobs())
+	env := cellEnv{ctx: ectx, seed: plan.Seed, workers: opts.jobs(), progress: prog}
 	for _, c := range cells {
-		mk := samples[c]
 		eg.Go(func() error {
 			if err := ectx.Err(); err != nil {
 				return err
 			}
-			c.out = measureSample(c.test, c.pair, c.group, mk())
-			return nil
+			t := c.in.test
+			c.in.s = pairUp(tables[t.Pairing.Dataset.Name], t, c.in.pair, c.rows)
+			c.in.s.groupNote = c.note
+			out, err := measureSample(env, c.in)
+			c.in.s = sample{} // the cell's copy of the data is no longer needed
+			c.out = out
+			prog.cellDone()
+			return err
 		})
 	}
 	if err := eg.Wait(); err != nil {
@@ -155,12 +160,16 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		return nil, err
 	}
 
-	comp := &Computation{inputs: inputs}
-	byTest := map[string][]Result{}
+	var results []Result
 	for _, c := range cells {
-		comp.Results = append(comp.Results, c.out...)
-		byTest[c.test.Name] = append(byTest[c.test.Name], c.out...)
+		results = append(results, c.out...)
 	}
+	adjustFamilies(plan, results)
+	byTest := map[string][]Result{}
+	for _, r := range results {
+		byTest[r.Test] = append(byTest[r.Test], r)
+	}
+	comp := &Computation{inputs: inputs, Results: results}
 	for _, t := range plan.Tests {
 		step, err := stepRecord(plan, t, inputs, byTest[t.Name])
 		if err != nil {
@@ -252,24 +261,45 @@ func sortLabels(names []string) {
 	})
 }
 
-// pairUp returns the complete (x, y) observations of one group under the
-// pairing's missing rule, and what was dropped.
-func pairUp(t *dataset.Table, p *recipe.Pairing, pair recipe.Pair, rows []int) sample {
-	xs, ys := valueColumn(t, pair.X).Values, valueColumn(t, pair.Y).Values
+// pairUp returns the complete (x, y) observations of one group of test
+// t's pairing under its missing rule, with t's controls: a row missing a
+// control is dropped whatever the rule, since a partial correlation needs
+// every variable.
+func pairUp(tbl *dataset.Table, t *recipe.Test, pair recipe.Pair, rows []int) sample {
+	p := t.Pairing
+	xs, ys := valueColumn(tbl, pair.X).Values, valueColumn(tbl, pair.Y).Values
 	var others [][]float64
 	if p.Missing == recipe.Listwise {
 		for _, name := range pairingColumns(p) {
 			if name != pair.X && name != pair.Y {
-				others = append(others, valueColumn(t, name).Values)
+				others = append(others, valueColumn(tbl, name).Values)
 			}
 		}
 	}
-	total := t.Rows
+	controls := make([][]float64, len(t.Controls))
+	for j, name := range t.Controls {
+		controls[j] = valueColumn(tbl, name).Values
+	}
+	total := tbl.Rows
 	if rows != nil {
 		total = len(rows)
 	}
 	s := sample{x: make([]float64, 0, total), y: make([]float64, 0, total)}
-	var missX, missY, missBoth, missOther int
+	if len(controls) > 0 {
+		s.z = make([][]float64, len(controls))
+		for j := range s.z {
+			s.z[j] = make([]float64, 0, total)
+		}
+	}
+	anyMissing := func(cols [][]float64, i int) bool {
+		for _, o := range cols {
+			if math.IsNaN(o[i]) {
+				return true
+			}
+		}
+		return false
+	}
+	var missX, missY, missBoth, missOther, missControl int
 	for k := 0; k < total; k++ {
 		i := k
 		if rows != nil {
@@ -287,20 +317,18 @@ func pairUp(t *dataset.Table, p *recipe.Pairing, pair recipe.Pair, rows []int) s
 		case my:
 			missY++
 			continue
-		}
-		other := false
-		for _, o := range others {
-			if math.IsNaN(o[i]) {
-				other = true
-				break
-			}
-		}
-		if other {
+		case anyMissing(others, i):
 			missOther++
+			continue
+		case anyMissing(controls, i):
+			missControl++
 			continue
 		}
 		s.x = append(s.x, x)
 		s.y = append(s.y, y)
+		for j, c := range controls {
+			s.z[j] = append(s.z[j], c[i])
+		}
 	}
 	s.dropped = total - len(s.x)
 	if s.dropped > 0 {
@@ -316,6 +344,9 @@ func pairUp(t *dataset.Table, p *recipe.Pairing, pair recipe.Pair, rows []int) s
 		}
 		if missOther > 0 {
 			why = append(why, fmt.Sprintf("%d missing another column of the pairing (listwise)", missOther))
+		}
+		if missControl > 0 {
+			why = append(why, fmt.Sprintf("%d missing a control (%s)", missControl, strings.Join(t.Controls, ", ")))
 		}
 		s.dropNote = fmt.Sprintf("%d of %d rows dropped: %s", s.dropped, total, strings.Join(why, ", "))
 	}

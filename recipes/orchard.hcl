@@ -28,17 +28,53 @@ ties "midrank" {
   max_share = 0.3
 }
 
+# A grade is ordinal with four levels: the Kendall family and Somers' d
+# (grade as the dependent variable) speak to it directly.
+pairing "shade_vs_grade" {
+  dataset = "harvest"
+  x       = ["shade_pct"]
+  y       = ["grade"]
+  by      = "orchard_block"
+}
+
+# Older trees sit in the shadier rows: is shade still related to sugar once
+# tree age is held fixed?
+pairing "shade_vs_sugar" {
+  dataset = "harvest"
+  x       = ["shade_pct"]
+  y       = ["sugar_brix"]
+}
+
 test "shade_quality" {
   pairing     = "shade_vs_quality"
   ties        = "midrank"
   measures    = ["spearman", "kendall_b", "pearson"]
   alternative = "two-sided"
-  p_value     = "asymptotic"
+  p_value     = "auto"      # exact where affordable, else the best approximation
+  adjust      = "holm"      # over the 16 results of each measure
 
   interval {
     level  = 0.95
     method = "fisher"
   }
+}
+
+test "grade_ordinal" {
+  pairing      = "shade_vs_grade"
+  measures     = ["somers_d", "gamma"]
+  p_value      = "permutation"
+  permutations = 5000
+
+  interval {
+    method    = "bca"
+    resamples = 1000
+  }
+}
+
+test "sugar_given_age" {
+  pairing  = "shade_vs_sugar"
+  measures = ["spearman"]
+  controls = ["tree_age"]
 }
 
 table "quality_summary" {
@@ -51,4 +87,9 @@ table "quality_summary" {
 table "quality_records" {
   tests = ["shade_quality"]
   path  = "out/orchard_quality.json"
+}
+
+table "grade_and_partial" {
+  tests = ["grade_ordinal", "sugar_given_age"]
+  path  = "out/orchard_grade.md"
 }

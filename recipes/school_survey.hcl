@@ -27,6 +27,7 @@ pairing "wellbeing" {
 test "wellbeing_matrix" {
   pairing  = "wellbeing"
   measures = ["spearman", "kendall_b"]
+  adjust   = "bh"   # Benjamini-Hochberg over the 10 pairs of each measure
 }
 
 table "matrix_long" {

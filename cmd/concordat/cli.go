@@ -37,6 +37,7 @@ const usage = `usage: concordat <command> [flags] [arguments]
 commands:
   run RECIPE...      compute the recipe's tests, write its tables, append to its ledger
   check RECIPE...    validate recipes against their data headers and print the plan; compute nothing
+  power              power of a test of association, or the n needed for a target power
   version            print the version
 
 Run "concordat <command> --help" for the flags of a command.
@@ -53,6 +54,8 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return cmdRun(rest, stdout, stderr)
 	case "check":
 		return cmdCheck(rest, stdout, stderr)
+	case "power":
+		return cmdPower(rest, stdout, stderr)
 	case "version", "--version":
 		fmt.Fprintf(stdout, "concordat %s\n", toolVersion())
 		return exitOK
@@ -78,17 +81,22 @@ func toolVersion() string {
 type command struct {
 	fs      *pflag.FlagSet
 	summary string
+	args    string // what follows the flags in the usage line; "" for none
 }
 
 func newCommand(name, summary string) *command {
 	fs := pflag.NewFlagSet(name, pflag.ContinueOnError)
 	fs.SetOutput(io.Discard) // usage is printed by parse, to the right stream
 	fs.Usage = func() {}
-	return &command{fs: fs, summary: summary}
+	return &command{fs: fs, summary: summary, args: "RECIPE..."}
 }
 
 func (c *command) usage(w io.Writer) {
-	fmt.Fprintf(w, "usage: concordat %s [flags] RECIPE...\n\n%s\n", c.fs.Name(), c.summary)
+	line := "usage: concordat " + c.fs.Name() + " [flags]"
+	if c.args != "" {
+		line += " " + c.args
+	}
+	fmt.Fprintf(w, "%s\n\n%s\n", line, c.summary)
 	if !c.fs.HasFlags() {
 		return
 	}
@@ -110,8 +118,13 @@ func (c *command) parse(args []string, stdout, stderr io.Writer) int {
 		c.usage(stderr)
 		return exitUsage
 	}
-	if c.fs.NArg() == 0 {
+	switch {
+	case c.args != "" && c.fs.NArg() == 0:
 		fmt.Fprintf(stderr, "concordat: error: %s needs at least one recipe file\n", c.fs.Name())
+		c.usage(stderr)
+		return exitUsage
+	case c.args == "" && c.fs.NArg() > 0:
+		fmt.Fprintf(stderr, "concordat: error: %s takes flags only, not %q\n", c.fs.Name(), c.fs.Arg(0))
 		c.usage(stderr)
 		return exitUsage
 	}
@@ -144,7 +157,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 			code = max(code, exitUsage)
 			continue
 		}
-		rep, err := engine.Run(ctx, plan, engine.Options{Jobs: *jobs, Version: toolVersion(), Stderr: stderr})
+		rep, err := engine.Run(ctx, plan, engine.Options{
+			Jobs: *jobs, Version: toolVersion(), Stderr: stderr, Progress: terminal(stderr),
+		})
 		if err != nil {
 			code = max(code, reportError(stderr, path, plan, err))
 			continue
@@ -271,6 +286,15 @@ func printDiags(w io.Writer, path string, files map[string]*hcl.File, diags hcl.
 		}
 		w.Write(buf.Bytes())
 	}
+}
+
+// terminal returns w when it is a terminal, for progress lines that redraw
+// in place, and nil otherwise (a log file or a pipe gets no progress).
+func terminal(w io.Writer) io.Writer {
+	if f, ok := w.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
+		return w
+	}
+	return nil
 }
 
 func plural(n int, word string) string {

@@ -1,0 +1,352 @@
+package engine
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"concordat/engine/stats"
+	"concordat/recipe"
+)
+
+// pRoute is the computation behind one result's p-value.
+type pRoute int
+
+const (
+	_                 pRoute = iota
+	routeSpearmanNull        // the exact null of rho without ties (stats.SpearmanExactP)
+	routeKendallNull         // the exact null of S without ties (stats.KendallExactP)
+	routeEdgeworth           // the Edgeworth series for rho (stats.SpearmanEdgeworthP)
+	routeT                   // Student's t (stats.CorrelationT)
+	routePartialT            // Student's t with n − 2 − k df (stats.PartialT)
+	routeNormal              // the normal approximation to S (stats.KendallNormal)
+	routeEnumerate           // every distinct arrangement of y against x
+	routeMonteCarlo          // random permutations, p = (b + 1)/(m + 1)
+)
+
+// pChoice is how one result's p-value is computed, the method the result
+// record reports, and any note the reader needs about the choice.
+type pChoice struct {
+	route  pRoute
+	method stats.PMethod
+	notes  []string
+}
+
+// pMethodFor picks the p-value computation of measure m in test t for a
+// sample of n pairs, tied when x or y holds equal values:
+//
+//   - auto: without ties, the exact null for rho up to
+//     stats.SpearmanExactMaxN, then the Edgeworth series up to
+//     stats.SpearmanEdgeworthMaxN, then t; the exact null of S for every
+//     Kendall-type measure up to stats.KendallExactMaxN, then normal. With
+//     ties, the exact conditional distribution (every distinct arrangement
+//     of y against x) when there are at most stats.MaxEnumeration of them,
+//     else t (rho) or normal (S). Pearson's r uses t, exact under
+//     bivariate normality.
+//   - exact: as auto where an exact method is available; elsewhere
+//     Monte Carlo permutations, with a note, because an approximation
+//     would not be what was asked for.
+//   - asymptotic: t for rho and r, normal for S.
+//   - permutation: Monte Carlo permutations, t.Permutations draws.
+//
+// With controls every p-value is the partial correlation's t test.
+//
+// Every Kendall-type measure (tau-a, tau-b, tau-c, gamma, Somers' d) is
+// tested through S = n_c − n_d: under independence with fixed margins each
+// is S divided by a positive constant, except gamma, whose permutation
+// distribution is enumerated or sampled on gamma itself.
+func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
+	n := len(s.x)
+	if len(t.Controls) > 0 {
+		return pChoice{route: routePartialT, method: stats.PT}
+	}
+	asymptotic := func() pChoice {
+		if isKendall(m) {
+			return pChoice{route: routeNormal, method: stats.PNormal}
+		}
+		return pChoice{route: routeT, method: stats.PT}
+	}
+	monteCarlo := pChoice{route: routeMonteCarlo, method: stats.PPermutation}
+	enumerable := func() bool {
+		return n >= minPairs && stats.Arrangements(s.x, s.y) <= stats.MaxEnumeration
+	}
+	// exactUntied is the exact null without ties, when affordable.
+	exactUntied := func() (pChoice, bool) {
+		switch {
+		case tied:
+		case m == stats.Spearman && n <= stats.SpearmanExactMaxN:
+			return pChoice{route: routeSpearmanNull, method: stats.PExact}, true
+		case isKendall(m) && n <= stats.KendallExactMaxN:
+			return pChoice{route: routeKendallNull, method: stats.PExact}, true
+		}
+		return pChoice{}, false
+	}
+
+	switch t.PValue {
+	case recipe.PAsymptotic:
+		return asymptotic()
+	case recipe.PPermutation:
+		return monteCarlo
+	case recipe.PAuto:
+		if m == stats.PearsonR {
+			return pChoice{route: routeT, method: stats.PT}
+		}
+		if c, ok := exactUntied(); ok {
+			return c
+		}
+		if !tied && m == stats.Spearman && n <= stats.SpearmanEdgeworthMaxN {
+			return pChoice{route: routeEdgeworth, method: stats.PEdgeworth}
+		}
+		if tied && enumerable() {
+			return pChoice{route: routeEnumerate, method: stats.PExact}
+		}
+		return asymptotic()
+	case recipe.PExact:
+		if c, ok := exactUntied(); ok {
+			return c
+		}
+		if enumerable() {
+			return pChoice{route: routeEnumerate, method: stats.PExact}
+		}
+		why := fmt.Sprintf("n = %d", n)
+		if tied {
+			why += " with ties"
+		}
+		monteCarlo.notes = []string{fmt.Sprintf(
+			"an exact p-value is not affordable here (%s: about %.2g distinct arrangements); it is estimated from %d random permutations as (b + 1)/(m + 1)",
+			why, stats.Arrangements(s.x, s.y), t.Permutations)}
+		return monteCarlo
+	}
+	panic(fmt.Sprintf("engine: p-value method %v has no route", t.PValue))
+}
+
+// pValues fills in the p-value of every result of a cell whose estimate is
+// defined; counts are the sample's Kendall pair counts when already known,
+// else nil. The permutation routes share one pass over the arrangements (or
+// draws) for all the measures that take them.
+func pValues(env cellEnv, c cellInput, results []Result, choices []pChoice, counts *stats.PairCounts) error {
+	t, s := c.test, c.s
+	n := len(s.x)
+	alt := t.Alternative
+	kendall := func() stats.PairCounts {
+		if counts == nil {
+			pc := stats.CountPairs(s.x, s.y)
+			counts = &pc
+		}
+		return *counts
+	}
+	var enumerate, draw []int // indices of the results that take each route
+	for i := range results {
+		r := &results[i]
+		if math.IsNaN(r.Estimate) {
+			continue
+		}
+		switch choices[i].route {
+		case routeSpearmanNull:
+			r.PValue = stats.SpearmanExactP(r.Estimate, n, alt)
+		case routeEdgeworth:
+			r.PValue = stats.SpearmanEdgeworthP(r.Estimate, n, alt)
+		case routeT:
+			r.PValue = stats.CorrelationT(r.Estimate, n, alt)
+		case routePartialT:
+			r.PValue = stats.PartialT(r.Estimate, n, len(s.z), alt)
+		case routeNormal:
+			r.PValue = stats.KendallNormal(kendall(), alt)
+		case routeKendallNull:
+			r.PValue = stats.KendallExactP(kendall().S(), n, alt)
+		case routeEnumerate:
+			enumerate = append(enumerate, i)
+		case routeMonteCarlo:
+			draw = append(draw, i)
+		default:
+			panic(fmt.Sprintf("engine: unknown p-value route %d", choices[i].route))
+		}
+	}
+	for _, batch := range []struct {
+		idx   []int
+		exact bool
+	}{{enumerate, true}, {draw, false}} {
+		if len(batch.idx) == 0 {
+			continue
+		}
+		spec := stats.PermutationSpec{
+			Rule: t.Ties.Rule, Alt: alt, Draws: t.Permutations,
+			Key:      stats.NewStreamKey(env.seed, "permutation", t.Name, c.pair.X, c.pair.Y, c.group),
+			Workers:  env.workers,
+			Progress: env.progress.draws(),
+		}
+		for _, i := range batch.idx {
+			spec.Measures = append(spec.Measures, t.Measures[i])
+		}
+		run := stats.PermutationTest
+		if batch.exact {
+			run = stats.ExactPermutationTest
+		}
+		res, err := run(env.ctx, s.x, s.y, spec)
+		if err != nil {
+			return err
+		}
+		for j, i := range batch.idx {
+			results[i].PValue = res.P[j]
+		}
+	}
+	return nil
+}
+
+// intervalName is the ci_method a result of measure m in test t reports.
+func intervalName(t *recipe.Test, m stats.Measure) string {
+	switch t.Interval.Method {
+	case recipe.IntervalBootstrap:
+		return "bootstrap"
+	case recipe.IntervalBCa:
+		return "bca"
+	}
+	switch m {
+	case stats.Spearman:
+		return "bonett-wright"
+	case stats.PearsonR:
+		return "fisher"
+	case stats.KendallB:
+		return "fieller"
+	}
+	return "wald"
+}
+
+// intervalMinN is the smallest n for which a Fisher-type interval's
+// standard error is finite: n − 3 − k > 0 for Fisher z and Bonett–Wright
+// (k controls), n − 4 > 0 for Fieller; the Wald intervals of the other
+// Kendall-type measures need only a defined estimate.
+func intervalMinN(t *recipe.Test, m stats.Measure) int {
+	switch m {
+	case stats.Spearman, stats.PearsonR:
+		return 4 + len(t.Controls)
+	case stats.KendallB:
+		return 5
+	}
+	return minPairs
+}
+
+// intervals fills in the confidence interval of every result of a cell
+// whose estimate is defined.
+func intervals(env cellEnv, c cellInput, results []Result) error {
+	t, s := c.test, c.s
+	n, k := len(s.x), len(s.z)
+	level, alt := t.Interval.Level, t.Alternative
+	for i := range results {
+		r := &results[i]
+		if math.IsNaN(r.Estimate) {
+			continue
+		}
+		m, est := t.Measures[i], r.Estimate
+		if t.Interval.Method != recipe.IntervalFisher {
+			spec := stats.BootstrapSpec{
+				Resamples: t.Interval.Resamples, Level: level, Alt: alt,
+				BCa: t.Interval.Method == recipe.IntervalBCa,
+				// One stream per cell: every measure sees the same
+				// resamples, so their intervals are comparable.
+				Key:      stats.NewStreamKey(env.seed, "bootstrap", t.Name, c.pair.X, c.pair.Y, c.group),
+				Workers:  env.workers,
+				Progress: env.progress.draws(),
+			}
+			lo, hi, err := stats.BootstrapInterval(env.ctx, n, bootStatistic(t, m, s), spec)
+			switch {
+			case errors.Is(err, stats.ErrBootstrapUndefined):
+				r.Warnings = append(r.Warnings, fmt.Sprintf("the %s interval is undefined here: %s",
+					r.CIMethod, strings.TrimPrefix(err.Error(), "stats: bootstrap: ")))
+			case err != nil:
+				return err
+			}
+			r.CILow, r.CIHigh = lo, hi
+			continue
+		}
+		switch {
+		case m == stats.Spearman && k > 0:
+			r.CILow, r.CIHigh = stats.PartialBonettWrightInterval(est, n, k, level, alt)
+		case m == stats.Spearman:
+			r.CILow, r.CIHigh = stats.BonettWrightInterval(est, n, level, alt)
+		case m == stats.PearsonR && k > 0:
+			r.CILow, r.CIHigh = stats.PartialFisherInterval(est, n, k, level, alt)
+		case m == stats.PearsonR:
+			r.CILow, r.CIHigh = stats.FisherInterval(est, n, level, alt)
+		case m == stats.KendallB:
+			r.CILow, r.CIHigh = stats.FiellerInterval(est, n, level, alt)
+		default:
+			r.CILow, r.CIHigh = stats.WaldInterval(est, stats.OrdinalSE(s.x, s.y, m), level, alt)
+		}
+	}
+	return nil
+}
+
+// estimate computes measure m of test t on one sample; bootstrap resamples
+// go through it too, so a resample is measured exactly as the sample was.
+func estimate(t *recipe.Test, m stats.Measure, x, y []float64, z [][]float64) float64 {
+	switch {
+	case m == stats.Spearman && len(z) > 0:
+		return stats.PartialSpearman(x, y, z, t.Ties.Rule)
+	case m == stats.Spearman:
+		return stats.SpearmanRho(x, y, t.Ties.Rule)
+	case m == stats.PearsonR && len(z) > 0:
+		return stats.PartialCorrelation(x, y, z)
+	case m == stats.PearsonR:
+		return stats.Pearson(x, y)
+	}
+	return stats.CountPairs(x, y).Estimate(m)
+}
+
+// bootStatistic measures m on bootstrap resamples of s, each worker with
+// its own buffers.
+func bootStatistic(t *recipe.Test, m stats.Measure, s sample) stats.NewStatistic {
+	return func() func(idx []int) float64 {
+		n := len(s.x)
+		bx, by := make([]float64, n), make([]float64, n)
+		bz := make([][]float64, len(s.z))
+		for j := range bz {
+			bz[j] = make([]float64, n)
+		}
+		return func(idx []int) float64 {
+			for i, j := range idx {
+				bx[i], by[i] = s.x[j], s.y[j]
+				for c := range bz {
+					bz[c][i] = s.z[c][j]
+				}
+			}
+			return estimate(t, m, bx, by, bz)
+		}
+	}
+}
+
+// adjustFamilies sets p_adjusted on results: each test's results of one
+// measure form a family (every pair and group of the test), adjusted by the
+// test's method. Results without a p-value stay out of the family.
+func adjustFamilies(plan *recipe.Plan, results []Result) {
+	byTest := map[string]*recipe.Test{}
+	for _, t := range plan.Tests {
+		byTest[t.Name] = t
+	}
+	type family struct{ test, measure string }
+	members := map[family][]int{}
+	var order []family
+	for i, r := range results {
+		t := byTest[r.Test]
+		if t.Adjust == stats.AdjustNone {
+			continue
+		}
+		f := family{r.Test, r.Measure}
+		if _, ok := members[f]; !ok {
+			order = append(order, f)
+		}
+		members[f] = append(members[f], i)
+	}
+	for _, f := range order {
+		idx := members[f]
+		p := make([]float64, len(idx))
+		for j, i := range idx {
+			p[j] = results[i].PValue
+		}
+		adj := stats.Adjust(p, byTest[f.test].Adjust)
+		for j, i := range idx {
+			results[i].PAdjusted = adj[j]
+		}
+	}
+}

@@ -1,0 +1,295 @@
+package engine
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"reflect"
+	"slices"
+	"strings"
+	"testing"
+
+	"concordat/engine/stats"
+)
+
+// pairCSV writes x and y (and any extra columns) as a CSV table.
+func pairCSV(x, y []float64, extra map[string][]float64) string {
+	var names []string
+	for k := range extra {
+		names = append(names, k)
+	}
+	slices.Sort(names)
+	var b strings.Builder
+	b.WriteString("x,y")
+	for _, k := range names {
+		b.WriteString("," + k)
+	}
+	b.WriteString("\n")
+	for i := range x {
+		fmt.Fprintf(&b, "%g,%g", x[i], y[i])
+		for _, k := range names {
+			if v := extra[k][i]; math.IsNaN(v) {
+				b.WriteString(",NA")
+			} else {
+				fmt.Fprintf(&b, ",%g", v)
+			}
+		}
+		b.WriteString("\n")
+	}
+	return b.String()
+}
+
+// testRecipe is a one-test recipe over d.csv's x and y; body goes into the
+// test block.
+func testRecipe(body string) string {
+	return `seed = 7
+dataset "d" {
+  path = "d.csv"
+}
+pairing "p" {
+  dataset = "d"
+  x = ["x"]
+  y = ["y"]
+}
+test "t" {
+  pairing = "p"
+  ` + body + `
+}
+table "out" {
+  tests = ["t"]
+  path  = "out.json"
+}
+`
+}
+
+// noisy returns n pairs with a moderate monotone relation, rounded to
+// digits decimals (0 digits makes ties).
+func noisy(n, digits int, seed uint64) (x, y []float64) {
+	r := rand.New(rand.NewPCG(seed, 1))
+	scale := math.Pow10(digits)
+	for i := 0; i < n; i++ {
+		a := r.NormFloat64()
+		b := 0.5*a + r.NormFloat64()
+		x = append(x, math.Round(a*scale*3)/scale)
+		y = append(y, math.Round(b*scale*3)/scale)
+	}
+	return x, y
+}
+
+func computeOne(t *testing.T, body string, data string) []Result {
+	t.Helper()
+	p := plan(t, testRecipe(body), map[string]string{"d.csv": data})
+	return mustCompute(t, p).Results
+}
+
+// TestAutoPicksTheMostAccurateMethod checks the p-value route of each kind
+// of sample under p_value = "auto" and "exact", and that the record names it.
+func TestAutoPicksTheMostAccurateMethod(t *testing.T) {
+	untied := func(n int) string { x, y := noisy(n, 6, uint64(n)); return pairCSV(x, y, nil) }
+	tied := func(n int) string { x, y := noisy(n, 0, uint64(n)); return pairCSV(x, y, nil) }
+	for _, tc := range []struct {
+		name, body, data string
+		want             []string // p_method per measure
+		note             string   // a substring among the warnings, or ""
+	}{
+		{"untied small: exact nulls", `measures = ["spearman", "kendall_b", "pearson"]`, untied(12),
+			[]string{"exact", "exact", "t"}, ""},
+		{"untied mid: edgeworth for rho", `measures = ["spearman", "kendall_b"]`, untied(stats.SpearmanExactMaxN + 1),
+			[]string{"edgeworth", "exact"}, ""},
+		{"untied large: t and normal", `measures = ["spearman", "gamma"]`, untied(max(stats.SpearmanEdgeworthMaxN, stats.KendallExactMaxN) + 1),
+			[]string{"t", "normal"}, ""},
+		{"tied small: every arrangement", `measures = ["spearman", "kendall_b", "somers_d"]`, tied(8),
+			[]string{"exact", "exact", "exact", "exact"}, "the p-value is exact, but the test has little power"},
+		{"tied mid: asymptotic", `measures = ["spearman", "kendall_b"]`, tied(40),
+			[]string{"t", "normal"}, ""},
+		{"tied mid, exact asked: permutations", `measures = ["spearman"]
+  p_value = "exact"
+  permutations = 2000`, tied(40),
+			[]string{"permutation"}, "estimated from 2000 random permutations"},
+		{"permutation asked", `measures = ["kendall_c", "pearson"]
+  p_value = "permutation"
+  permutations = 999`, untied(30),
+			[]string{"permutation", "permutation"}, ""},
+		{"asymptotic asked", `measures = ["spearman", "kendall_a"]
+  p_value = "asymptotic"`, untied(12),
+			[]string{"t", "normal"}, ""},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			res := computeOne(t, tc.body, tc.data)
+			var got []string
+			var notes []string
+			for _, r := range res {
+				got = append(got, r.PMethod)
+				notes = append(notes, r.Warnings...)
+				if !(r.PValue > 0 && r.PValue <= 1) {
+					t.Errorf("%s: p = %v, want in (0, 1]", r.Measure, r.PValue)
+				}
+			}
+			if !reflect.DeepEqual(got, tc.want) {
+				t.Errorf("p_method = %v, want %v", got, tc.want)
+			}
+			if tc.note != "" && !slices.ContainsFunc(notes, func(w string) bool { return strings.Contains(w, tc.note) }) {
+				t.Errorf("no note containing %q among %q", tc.note, notes)
+			}
+		})
+	}
+}
+
+// TestExactPValuesInTheRecord checks exact p-values end to end against
+// values counted by hand: for rho = 1 at n = 5 without ties, exactly one of
+// the 5! = 120 orderings reaches it, so the one-sided p is 1/120 and the
+// two-sided 2/120 (by counting permutations; also Zar 1972, Table 1, whose
+// smallest one-sided level at n = 5 is 0.0083 for rho = 1.0).
+func TestExactPValuesInTheRecord(t *testing.T) {
+	data := pairCSV([]float64{1, 2, 3, 4, 5}, []float64{10, 20, 30, 40, 50}, nil)
+	for alt, want := range map[string]float64{"two-sided": 2.0 / 120, "greater": 1.0 / 120, "less": 1} {
+		res := computeOne(t, `measures = ["spearman", "kendall_b"]
+  alternative = "`+alt+`"`, data)
+		for _, r := range res {
+			if r.PMethod != "exact" || math.Abs(r.PValue-want) > 1e-15 {
+				t.Errorf("%s %s: p = %v (%s), want %v exact", alt, r.Measure, r.PValue, r.PMethod, want)
+			}
+		}
+	}
+}
+
+// TestResamplingIgnoresWorkerCount runs permutation p-values and bootstrap
+// intervals with 1 and 4 workers: every number must be identical, because
+// each cell's randomness comes only from the seed and its labels.
+func TestResamplingIgnoresWorkerCount(t *testing.T) {
+	x, y := noisy(60, 0, 3)
+	g := make([]float64, len(x))
+	for i := range g {
+		g[i] = float64(i % 3)
+	}
+	data := pairCSV(x, y, map[string][]float64{"g": g})
+	src := strings.Replace(testRecipe(`measures = ["spearman", "kendall_b", "gamma"]
+  p_value = "permutation"
+  permutations = 3000
+  interval {
+    method    = "bca"
+    resamples = 500
+  }`), `y = ["y"]`, `y = ["y"]
+  by = "g"`, 1)
+	p := plan(t, src, map[string]string{"d.csv": data})
+	var runs [][]Result
+	for _, jobs := range []int{1, 4} {
+		comp, err := Compute(context.Background(), p, Options{Jobs: jobs})
+		if err != nil {
+			t.Fatal(err)
+		}
+		runs = append(runs, comp.Results)
+	}
+	if !reflect.DeepEqual(runs[0], runs[1]) {
+		t.Fatalf("results differ between 1 and 4 workers:\n%+v\n%+v", runs[0], runs[1])
+	}
+	for _, r := range runs[0] {
+		if r.PMethod != "permutation" || !(r.PValue > 0) || !(r.CILow <= r.Estimate && r.Estimate <= r.CIHigh) {
+			t.Errorf("%s %s: p = %v (%s), interval [%v, %v] around %v", r.Group, r.Measure, r.PValue, r.PMethod, r.CILow, r.CIHigh, r.Estimate)
+		}
+	}
+}
+
+// TestAdjustmentFormsFamiliesPerMeasure: each test's results of one measure
+// (every pair and group) form the family; the adjusted values are what
+// stats.Adjust gives on that family.
+func TestAdjustmentFormsFamiliesPerMeasure(t *testing.T) {
+	x, y := noisy(50, 2, 11)
+	z, w := noisy(50, 2, 12)
+	data := pairCSV(x, y, map[string][]float64{"z": z, "w": w})
+	src := strings.Replace(testRecipe(`measures = ["spearman", "kendall_b"]
+  adjust = "holm"`), `x = ["x"]
+  y = ["y"]`, `x = ["x", "z"]
+  y = ["y", "w"]`, 1)
+	res := mustCompute(t, plan(t, src, map[string]string{"d.csv": data})).Results
+	for _, m := range []string{"spearman", "kendall_b"} {
+		var p, got []float64
+		for _, r := range res {
+			if r.Measure == m {
+				p = append(p, r.PValue)
+				got = append(got, r.PAdjusted)
+				if r.AdjustMethod != "holm" {
+					t.Errorf("adjust_method = %q", r.AdjustMethod)
+				}
+			}
+		}
+		if len(p) != 4 {
+			t.Fatalf("%s: family of %d, want 4", m, len(p))
+		}
+		if want := stats.Adjust(p, stats.Holm); !reflect.DeepEqual(got, want) {
+			t.Errorf("%s: p_adjusted = %v, want %v", m, got, want)
+		}
+	}
+}
+
+// TestControlsGivePartialCorrelations: with controls, spearman and pearson
+// are partial correlations on the rows complete in x, y and every control,
+// tested with n − 2 − k degrees of freedom.
+func TestControlsGivePartialCorrelations(t *testing.T) {
+	x, y := noisy(40, 3, 21)
+	age, _ := noisy(40, 1, 22)
+	age[3], age[17] = math.NaN(), math.NaN()
+	data := pairCSV(x, y, map[string][]float64{"age": age})
+	res := computeOne(t, `measures = ["spearman", "pearson"]
+  controls = ["age"]`, data)
+	var cx, cy, ca []float64
+	for i := range x {
+		if !math.IsNaN(age[i]) {
+			cx, cy, ca = append(cx, x[i]), append(cy, y[i]), append(ca, age[i])
+		}
+	}
+	want := map[string]float64{
+		"spearman": stats.PartialSpearman(cx, cy, [][]float64{ca}, stats.TieAverage),
+		"pearson":  stats.PartialCorrelation(cx, cy, [][]float64{ca}),
+	}
+	for _, r := range res {
+		if r.N != 38 || r.NDropped != 2 || !reflect.DeepEqual(r.Controls, []string{"age"}) {
+			t.Errorf("%s: n = %d, dropped %d, controls %v", r.Measure, r.N, r.NDropped, r.Controls)
+		}
+		if r.Estimate != want[r.Measure] {
+			t.Errorf("%s: estimate %v, want %v", r.Measure, r.Estimate, want[r.Measure])
+		}
+		if p := stats.PartialT(r.Estimate, 38, 1, stats.TwoSided); r.PValue != p || r.PMethod != "t" {
+			t.Errorf("%s: p = %v (%s), want %v (t)", r.Measure, r.PValue, r.PMethod, p)
+		}
+		if !slices.ContainsFunc(r.Warnings, func(w string) bool { return strings.Contains(w, "2 missing a control (age)") }) {
+			t.Errorf("%s: no deletion note in %q", r.Measure, r.Warnings)
+		}
+	}
+}
+
+// TestUnknownControlPointsAtTheRecipe: a control the data lacks is reported
+// where the recipe names it, like any other column.
+func TestUnknownControlPointsAtTheRecipe(t *testing.T) {
+	data := pairCSV([]float64{1, 2, 3, 4}, []float64{1, 3, 2, 4}, map[string][]float64{"age": {1, 2, 3, 4}})
+	p := plan(t, testRecipe(`controls = ["agee"]`), map[string]string{"d.csv": data})
+	diags := Check(p)
+	if len(diags) != 1 || !strings.Contains(diags[0].Detail, `control column "agee" is not a column`) ||
+		!strings.Contains(diags[0].Detail, `Did you mean "age"?`) || diags[0].Subject.Start.Line != 12 {
+		t.Errorf("diagnostics = %v", diags)
+	}
+}
+
+// TestUShapeIsFlagged: rho near 0 on a clear U shape carries the
+// monotonicity note; a monotone relation does not.
+func TestUShapeIsFlagged(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 5))
+	var x, u, m []float64
+	for i := 0; i < 200; i++ {
+		v := r.Float64()*4 - 2
+		x = append(x, v)
+		u = append(u, v*v+0.2*r.NormFloat64())
+		m = append(m, v+0.5*r.NormFloat64())
+	}
+	const note = "the relation is not monotone"
+	has := func(res []Result) bool {
+		return slices.ContainsFunc(res[0].Warnings, func(w string) bool { return strings.Contains(w, note) })
+	}
+	if res := computeOne(t, `measures = ["spearman"]`, pairCSV(x, u, nil)); !has(res) {
+		t.Errorf("U shape (rho = %.3f) not flagged: %q", res[0].Estimate, res[0].Warnings)
+	}
+	if res := computeOne(t, `measures = ["spearman"]`, pairCSV(x, m, nil)); has(res) {
+		t.Errorf("monotone relation flagged: %q", res[0].Warnings)
+	}
+}
