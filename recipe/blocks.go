@@ -558,12 +558,20 @@ func (d *decoder) decodeControls(a *attr, t *Test) {
 		t.Controls = append(t.Controls, it.s)
 		t.ControlRanges[it.s] = it.rng
 	}
+	var kendall []string
 	for _, m := range t.Measures {
 		if m != stats.Spearman && m != stats.PearsonR {
-			d.errorf(a.Expr.Range(), &ctx, "Measure has no partial form",
-				"With controls, only \"spearman\" (partial Spearman: Pearson's partial correlation of ranks) and \"pearson\" can be computed; %s has no partial form with an agreed test. Move it to a test without controls.",
-				quote(m.String()))
+			kendall = append(kendall, m.String())
 		}
+	}
+	if len(kendall) > 0 {
+		verb := "has"
+		if len(kendall) > 1 {
+			verb = "have"
+		}
+		d.errorf(a.Expr.Range(), &ctx, "Measure has no partial form",
+			"With controls, only \"spearman\" (partial Spearman: Pearson's partial correlation of ranks) and \"pearson\" can be computed; %s %s no partial form with an agreed test. Move them to a test without controls.",
+			quoteList(kendall), verb)
 	}
 	if t.PValue == PExact || t.PValue == PPermutation {
 		d.errorf(a.Expr.Range(), &ctx, "P-value method unavailable with controls",
