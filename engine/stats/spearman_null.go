@@ -391,6 +391,32 @@ func SpearmanEdgeworthP(rho float64, n int, alt Alternative) float64 {
 	return math.Min(1, 2*spearmanEdgeworthUpper(2*(maxH-a), n))
 }
 
+// SpearmanEdgeworthReach reports whether SpearmanEdgeworthP(rho, n, ·)
+// evaluates the Edgeworth series itself for the tail that |rho| reaches
+// (series = true), or lies beyond the series' edge for n and returns the
+// capped t tail instead. edgeP is the series' one-sided tail at the edge:
+// the exact one-sided tail beyond the edge is smaller than about edgeP, so
+// a caller can report "p below about edgeP" (twice that, two-sided) rather
+// than pass the t tail off as the series. It returns false, NaN when n < 3
+// or rho is NaN or outside [−1, 1].
+func SpearmanEdgeworthReach(rho float64, n int) (series bool, edgeP float64) {
+	if n < 3 {
+		return false, math.NaN()
+	}
+	h, ok := spearmanHalfD(rho, n)
+	if !ok {
+		return false, math.NaN()
+	}
+	nf := float64(n)
+	nn := nf * (nf*nf - 1)
+	maxH := nn / 6
+	a := math.Min(h, maxH-h) // the tail |rho| reaches, as an upper tail of D′
+	d := 2 * (maxH - a)
+	x := (6*(d-1)/nn - 1) * math.Sqrt(nf-1)
+	edge := spearmanEdgeworthEdge(n)
+	return x <= edge.x, edge.p
+}
+
 // as89 holds the coefficients of the Edgeworth series of Best and Roberts
 // (1975), Algorithm AS 89: as89[j][i] multiplies x^(2j+1)·b^(i+1)·e^(−x²/2).
 // Transcribed from memory of the published algorithm and confirmed two

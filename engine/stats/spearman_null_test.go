@@ -696,3 +696,26 @@ func TestSpearmanEdgeworthMaxN(t *testing.T) {
 		}
 	}
 }
+
+// TestSpearmanEdgeworthReach: inside the edge the series is used; past it
+// SpearmanEdgeworthP returns the capped t tail, which Reach reports, and
+// the exact tail there (n = 18, where it is known) is below twice edgeP.
+func TestSpearmanEdgeworthReach(t *testing.T) {
+	const n = 18
+	if in, _ := SpearmanEdgeworthReach(0.3, n); !in {
+		t.Error("rho = 0.3 at n = 18 should be within the series")
+	}
+	in, edgeP := SpearmanEdgeworthReach(0.95, n)
+	if in || !(edgeP > 0 && edgeP < 1e-3) {
+		t.Fatalf("rho = 0.95: series %v, edgeP %v", in, edgeP)
+	}
+	if ex := SpearmanExactP(0.95, n, Greater); !(ex < 2*edgeP) {
+		t.Errorf("exact tail %v not below about edgeP %v", ex, edgeP)
+	}
+	if in, _ := SpearmanEdgeworthReach(-0.95, n); in {
+		t.Error("the reach must be symmetric in rho")
+	}
+	if in, p := SpearmanEdgeworthReach(math.NaN(), n); in || !math.IsNaN(p) {
+		t.Error("NaN rho")
+	}
+}
