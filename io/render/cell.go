@@ -57,10 +57,16 @@ type Cell struct {
 	f     float64 // Real, Prob; the lower bound of an Interval
 	hi    float64 // the upper bound of an Interval
 	items []string
+	none  bool // a Text cell with no value (NoText)
 }
 
 // Text returns a text cell holding s.
 func Text(s string) Cell { return Cell{kind: KindText, text: s} }
+
+// NoText returns a text cell that holds no value, such as the method of a
+// p-value that was not computed: "—" in Markdown, an empty field in CSV and
+// null in JSON.
+func NoText() Cell { return Cell{kind: KindText, none: true} }
 
 // Int returns an integer cell holding i.
 func Int(i int64) Cell { return Cell{kind: KindInt, i: i} }
@@ -96,10 +102,12 @@ func Interval(lo, hi float64) Cell { return Cell{kind: KindInterval, f: lo, hi: 
 // Kind returns what c holds.
 func (c Cell) Kind() Kind { return c.kind }
 
-// null reports whether c is an undefined number (NaN) or an interval with an
-// undefined bound.
+// null reports whether c is an undefined number (NaN), an interval with an
+// undefined bound, or a text cell without a value.
 func (c Cell) null() bool {
 	switch c.kind {
+	case KindText:
+		return c.none
 	case KindReal, KindProb:
 		return math.IsNaN(c.f)
 	case KindInterval:

@@ -58,6 +58,10 @@ func encodeJSON(w *bufio.Writer, t *Table) {
 func writeJSONCell(w *bufio.Writer, c Cell) {
 	switch c.kind {
 	case KindText:
+		if c.null() {
+			w.WriteString("null")
+			return
+		}
 		w.WriteString(jsonString(c.text))
 	case KindInt:
 		w.WriteString(itoa(c.i))

@@ -94,6 +94,9 @@ func encodeMarkdown(w *bufio.Writer, t *Table, digits int) {
 func mdCell(c Cell, digits int) string {
 	switch c.kind {
 	case KindText:
+		if c.null() {
+			return mdNull
+		}
 		return mdEscape(c.text)
 	case KindInt:
 		return itoa(c.i)

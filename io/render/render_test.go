@@ -118,6 +118,17 @@ func TestNull(t *testing.T) {
 	if got, want := encode(t, tab, JSON, 3), "[\n  {\n    \"estimate\": null,\n    \"p\": null\n  }\n]\n"; got != want {
 		t.Errorf("JSON: got %q, want %q", got, want)
 	}
+	// A text cell without a value is null too, unlike an empty string.
+	txt := &Table{Columns: []string{"method", "label"}, Rows: [][]Cell{{NoText(), Text("")}}}
+	if got, want := encode(t, txt, JSON, 3), "[\n  {\n    \"method\": null,\n    \"label\": \"\"\n  }\n]\n"; got != want {
+		t.Errorf("JSON NoText: got %q, want %q", got, want)
+	}
+	if got, want := encode(t, txt, CSV, 3), "method,label\n,\n"; got != want {
+		t.Errorf("CSV NoText: got %q, want %q", got, want)
+	}
+	if got := encode(t, txt, Markdown, 3); !strings.Contains(got, "| —      |") {
+		t.Errorf("Markdown NoText: got %q", got)
+	}
 	// Infinities are not JSON numbers; they are written as null.
 	inf := &Table{Columns: []string{"a", "b"}, Rows: [][]Cell{{Real(math.Inf(1)), Real(math.Inf(-1))}}}
 	if got, want := encode(t, inf, JSON, 3), "[\n  {\n    \"a\": null,\n    \"b\": null\n  }\n]\n"; got != want {
