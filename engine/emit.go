@@ -32,13 +32,22 @@ func fullTable(title string, rows []Result) *render.Table {
 			render.Text(r.Test), render.Text(r.X), render.Text(r.Y), render.Text(r.Group),
 			render.Text(r.Measure), render.Int(int64(r.N)), render.Int(int64(r.NDropped)),
 			render.Real(r.Estimate), render.Text(r.Alternative), render.Prob(r.PValue),
-			render.Text(r.PMethod), render.Real(r.CILow), render.Real(r.CIHigh),
-			render.Real(r.CILevel), render.Text(r.CIMethod), render.Prob(r.PAdjusted),
+			optText(r.PMethod), render.Real(r.CILow), render.Real(r.CIHigh),
+			render.Real(r.CILevel), optText(r.CIMethod), render.Prob(r.PAdjusted),
 			render.Text(r.AdjustMethod), render.Real(r.TiesX), render.Real(r.TiesY),
 			render.List(r.Warnings), render.List(r.Controls),
 		})
 	}
 	return t
+}
+
+// optText is a text cell that is null when s is empty: the method of a
+// p-value or interval that was not computed.
+func optText(s string) render.Cell {
+	if s == "" {
+		return render.NoText()
+	}
+	return render.Text(s)
 }
 
 // readableTable is the Markdown shape: the columns a reader of a paper
@@ -98,7 +107,7 @@ func readableTable(title string, rows []Result) *render.Table {
 		if oneSided {
 			row = append(row, render.Text(r.Alternative))
 		}
-		row = append(row, render.Prob(r.PValue), render.Text(r.PMethod))
+		row = append(row, render.Prob(r.PValue), optText(r.PMethod))
 		if adjusted {
 			adj := render.Prob(r.PAdjusted)
 			if r.AdjustMethod == stats.AdjustNone.String() {

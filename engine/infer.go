@@ -33,22 +33,34 @@ type pChoice struct {
 	notes  []string
 }
 
+// autoPermutationMaxN is the largest n for which p_value = "auto" turns to
+// Monte Carlo permutations when ties leave too many arrangements to
+// enumerate. Small tied samples are where the t and normal approximations
+// are least trustworthy and permutations cheapest (10 000 draws at n = 50
+// cost about what ranking 10⁶ values does); beyond it the tie-corrected
+// approximations serve, and a matrix of thousands of pairs stays fast.
+const autoPermutationMaxN = 50
+
 // pMethodFor picks the p-value computation of measure m in test t for a
-// sample of n pairs, tied when x or y holds equal values:
+// sample s, tied when x or y holds equal values:
 //
 //   - auto: without ties, the exact null for rho up to
 //     stats.SpearmanExactMaxN, then the Edgeworth series up to
-//     stats.SpearmanEdgeworthMaxN, then t; the exact null of S for every
+//     stats.SpearmanEdgeworthMaxN (t where |rho| lies beyond the series'
+//     reach, with a note), then t; the exact null of S for every
 //     Kendall-type measure up to stats.KendallExactMaxN, then normal. With
 //     ties, the exact conditional distribution (every distinct arrangement
 //     of y against x) when there are at most stats.MaxEnumeration of them,
-//     else t (rho) or normal (S). Pearson's r uses t, exact under
-//     bivariate normality.
-//   - exact: as auto where an exact method is available; elsewhere
-//     Monte Carlo permutations, with a note, because an approximation
-//     would not be what was asked for.
+//     else Monte Carlo permutations up to autoPermutationMaxN pairs, else
+//     t (rho) or normal (S). Pearson's r uses t, exact under bivariate
+//     normality.
+//   - exact: as auto where an exact method is available; elsewhere Monte
+//     Carlo permutations, with a note, because an approximation would not
+//     be what was asked for.
 //   - asymptotic: t for rho and r, normal for S.
-//   - permutation: Monte Carlo permutations, t.Permutations draws.
+//   - permutation: Monte Carlo permutations, t.Permutations draws; when
+//     there are no more distinct arrangements than draws, all of them are
+//     enumerated instead and the p-value is exact.
 //
 // With controls every p-value is the partial correlation's t test.
 //
@@ -68,9 +80,8 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 		return pChoice{route: routeT, method: stats.PT}
 	}
 	monteCarlo := pChoice{route: routeMonteCarlo, method: stats.PPermutation}
-	enumerable := func() bool {
-		return n >= minPairs && stats.Arrangements(s.x, s.y) <= stats.MaxEnumeration
-	}
+	enumerate := pChoice{route: routeEnumerate, method: stats.PExact}
+	arrangements := arrangementsFor(t, m, s)
 	// exactUntied is the exact null without ties, when affordable.
 	exactUntied := func() (pChoice, bool) {
 		switch {
@@ -87,6 +98,12 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 	case recipe.PAsymptotic:
 		return asymptotic()
 	case recipe.PPermutation:
+		if arrangements <= float64(min(t.Permutations, stats.MaxEnumeration)) {
+			enumerate.notes = []string{fmt.Sprintf(
+				"the %.0f distinct arrangements of these data are no more than the %d permutations asked for, so all of them were enumerated and the p-value is exact",
+				arrangements, t.Permutations)}
+			return enumerate
+		}
 		return monteCarlo
 	case recipe.PAuto:
 		if m == stats.PearsonR {
@@ -95,19 +112,21 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 		if c, ok := exactUntied(); ok {
 			return c
 		}
-		if !tied && m == stats.Spearman && n <= stats.SpearmanEdgeworthMaxN {
+		switch {
+		case !tied && m == stats.Spearman && n <= stats.SpearmanEdgeworthMaxN:
 			return pChoice{route: routeEdgeworth, method: stats.PEdgeworth}
-		}
-		if tied && enumerable() {
-			return pChoice{route: routeEnumerate, method: stats.PExact}
+		case tied && arrangements <= stats.MaxEnumeration:
+			return enumerate
+		case tied && n <= autoPermutationMaxN:
+			return monteCarlo
 		}
 		return asymptotic()
 	case recipe.PExact:
 		if c, ok := exactUntied(); ok {
 			return c
 		}
-		if enumerable() {
-			return pChoice{route: routeEnumerate, method: stats.PExact}
+		if arrangements <= stats.MaxEnumeration {
+			return enumerate
 		}
 		why := fmt.Sprintf("n = %d", n)
 		if tied {
@@ -115,10 +134,24 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 		}
 		monteCarlo.notes = []string{fmt.Sprintf(
 			"an exact p-value is not affordable here (%s: about %.2g distinct arrangements); it is estimated from %d random permutations as (b + 1)/(m + 1)",
-			why, stats.Arrangements(s.x, s.y), t.Permutations)}
+			why, arrangements, t.Permutations)}
 		return monteCarlo
 	}
 	panic(fmt.Sprintf("engine: p-value method %v has no route", t.PValue))
+}
+
+// arrangementsFor is how many distinct arrangements an exact permutation
+// test of m must visit. Under the "first" tie rule Spearman's ranks are
+// all distinct and move with their values, so every one of the n!
+// orderings counts.
+func arrangementsFor(t *recipe.Test, m stats.Measure, s sample) float64 {
+	if len(s.x) < minPairs {
+		return math.Inf(1)
+	}
+	if m == stats.Spearman && t.Ties.Rule == stats.TieFirst {
+		return math.Gamma(float64(len(s.x)) + 1)
+	}
+	return stats.Arrangements(s.x, s.y)
 }
 
 // pValues fills in the p-value of every result of a cell whose estimate is
@@ -147,6 +180,17 @@ func pValues(env cellEnv, c cellInput, results []Result, choices []pChoice, coun
 			r.PValue = stats.SpearmanExactP(r.Estimate, n, alt)
 		case routeEdgeworth:
 			r.PValue = stats.SpearmanEdgeworthP(r.Estimate, n, alt)
+			if farTail(r.Estimate, alt) {
+				if in, edgeP := stats.SpearmanEdgeworthReach(r.Estimate, n); !in {
+					if alt == stats.TwoSided {
+						edgeP *= 2
+					}
+					r.PValue = stats.CorrelationT(r.Estimate, n, alt)
+					choices[i] = pChoice{route: routeT, method: stats.PT, notes: []string{fmt.Sprintf(
+						"rho = %.3f lies beyond the reach of the Edgeworth series at n = %d, so the t approximation is reported; this far out it can be many times smaller than the exact p-value, which is below about %.1g",
+						r.Estimate, n, edgeP)}}
+				}
+			}
 		case routeT:
 			r.PValue = stats.CorrelationT(r.Estimate, n, alt)
 		case routePartialT:
@@ -184,6 +228,15 @@ func pValues(env cellEnv, c cellInput, results []Result, choices []pChoice, coun
 			run = stats.ExactPermutationTest
 		}
 		res, err := run(env.ctx, s.x, s.y, spec)
+		if errors.Is(err, stats.ErrTooManyArrangements) {
+			// Enumeration was judged affordable but is not (a bug in
+			// arrangementsFor): sample instead of failing the run.
+			res, err = stats.PermutationTest(env.ctx, s.x, s.y, spec)
+			for _, i := range batch.idx {
+				choices[i] = pChoice{route: routeMonteCarlo, method: stats.PPermutation, notes: []string{fmt.Sprintf(
+					"the arrangements of these data were too many to enumerate; the p-value is estimated from %d random permutations", t.Permutations)}}
+			}
+		}
 		if err != nil {
 			return err
 		}
@@ -192,6 +245,18 @@ func pValues(env cellEnv, c cellInput, results []Result, choices []pChoice, coun
 		}
 	}
 	return nil
+}
+
+// farTail reports whether alternative alt asks for the tail that rho lies
+// in (the two-sided test always does), where a p-value can be tiny.
+func farTail(rho float64, alt stats.Alternative) bool {
+	switch alt {
+	case stats.Greater:
+		return rho > 0
+	case stats.Less:
+		return rho < 0
+	}
+	return true
 }
 
 // intervalName is the ci_method a result of measure m in test t reports.
@@ -252,8 +317,9 @@ func intervals(env cellEnv, c cellInput, results []Result) error {
 			lo, hi, err := stats.BootstrapInterval(env.ctx, n, bootStatistic(t, m, s), spec)
 			switch {
 			case errors.Is(err, stats.ErrBootstrapUndefined):
-				r.Warnings = append(r.Warnings, fmt.Sprintf("the %s interval is undefined here: %s",
-					r.CIMethod, strings.TrimPrefix(err.Error(), "stats: bootstrap: ")))
+				why := strings.TrimPrefix(err.Error(), "stats: bootstrap: ")
+				why = strings.TrimSuffix(why, ": "+stats.ErrBootstrapUndefined.Error())
+				r.Warnings = append(r.Warnings, fmt.Sprintf("the %s interval is undefined here: %s", r.CIMethod, why))
 			case err != nil:
 				return err
 			}
@@ -318,7 +384,11 @@ func bootStatistic(t *recipe.Test, m stats.Measure, s sample) stats.NewStatistic
 
 // adjustFamilies sets p_adjusted on results: each test's results of one
 // measure form a family (every pair and group of the test), adjusted by the
-// test's method. Results without a p-value stay out of the family.
+// test's method. A result whose p-value was computed but withheld (an
+// asymptotic p below what any exact test could give) still counts in the
+// family size, so withholding never makes the adjustment less
+// conservative; its adjusted value is withheld too. Results without any
+// p-value (an undefined estimate) stay out of the family.
 func adjustFamilies(plan *recipe.Plan, results []Result) {
 	byTest := map[string]*recipe.Test{}
 	for _, t := range plan.Tests {
@@ -342,11 +412,17 @@ func adjustFamilies(plan *recipe.Plan, results []Result) {
 		idx := members[f]
 		p := make([]float64, len(idx))
 		for j, i := range idx {
-			p[j] = results[i].PValue
+			p[j] = results[i].pFamily
 		}
 		adj := stats.Adjust(p, byTest[f.test].Adjust)
 		for j, i := range idx {
-			results[i].PAdjusted = adj[j]
+			r := &results[i]
+			switch {
+			case math.IsNaN(r.PValue): // withheld: counted in m, not shown
+				r.PAdjusted = math.NaN()
+			default:
+				r.PAdjusted = math.Max(adj[j], r.PValue) // the bound pFloor, if p was written as it
+			}
 		}
 	}
 }

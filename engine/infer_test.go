@@ -101,8 +101,13 @@ func TestAutoPicksTheMostAccurateMethod(t *testing.T) {
 			[]string{"t", "normal"}, ""},
 		{"tied small: every arrangement", `measures = ["spearman", "kendall_b", "somers_d"]`, tied(8),
 			[]string{"exact", "exact", "exact", "exact"}, "the p-value is exact, but the test has little power"},
-		{"tied mid: asymptotic", `measures = ["spearman", "kendall_b"]`, tied(40),
+		{"tied mid: permutations", `measures = ["spearman", "kendall_b"]`, tied(40),
+			[]string{"permutation", "permutation"}, ""},
+		{"tied large: asymptotic", `measures = ["spearman", "kendall_b"]`, tied(autoPermutationMaxN + 1),
 			[]string{"t", "normal"}, ""},
+		{"permutation asked, few arrangements: enumerated", `measures = ["spearman"]
+  p_value = "permutation"`, untied(7),
+			[]string{"exact"}, "all of them were enumerated and the p-value is exact"},
 		{"tied mid, exact asked: permutations", `measures = ["spearman"]
   p_value = "exact"
   permutations = 2000`, tied(40),
@@ -318,5 +323,99 @@ func TestTextbookExampleThroughTheEngine(t *testing.T) {
 				t.Errorf("%s %s: p = %.9g (%s), want %.9g (exact)", alt, r.Measure, r.PValue, r.PMethod, w)
 			}
 		}
+	}
+}
+
+// TestEdgeworthFarTailSaysT: beyond the reach of the Edgeworth series the
+// reported p-value is the t tail, so the record says t and the note bounds
+// the exact value; inside the reach the record says edgeworth.
+func TestEdgeworthFarTailSaysT(t *testing.T) {
+	n := stats.SpearmanExactMaxN + 2
+	var x, near, mid []float64
+	for i := 0; i < n; i++ {
+		x = append(x, float64(i))
+		near = append(near, float64(i^1)) // swap neighbours: rho ≈ 0.99
+		mid = append(mid, float64((i*7)%n))
+	}
+	far := computeOne(t, `measures = ["spearman"]`, pairCSV(x, near, nil))[0]
+	if far.PMethod != "t" || !slices.ContainsFunc(far.Warnings, func(w string) bool {
+		return strings.Contains(w, "beyond the reach of the Edgeworth series") && strings.Contains(w, "below about")
+	}) {
+		t.Errorf("rho = %.3f: p = %g (%s), notes %q", far.Estimate, far.PValue, far.PMethod, far.Warnings)
+	}
+	if in := computeOne(t, `measures = ["spearman"]`, pairCSV(x, mid, nil))[0]; in.PMethod != "edgeworth" {
+		t.Errorf("rho = %.3f: p_method %s, want edgeworth", in.Estimate, in.PMethod)
+	}
+}
+
+// TestFirstRuleWithTiesRuns: under the "first" rule Spearman's ranks are all
+// distinct, so its exact test has n! arrangements however many ties the
+// values hold; the run samples permutations instead of failing.
+func TestFirstRuleWithTiesRuns(t *testing.T) {
+	// Three levels each: few distinct arrangements of the values (at most
+	// 12!/(4!4!4!) = 34 650), but 12! orderings of "first" ranks.
+	var x, y []float64
+	for i := 0; i < 12; i++ {
+		x = append(x, float64(i%3))
+		y = append(y, float64((i/2)%3))
+	}
+	src := strings.Replace(testRecipe(`ties = "byorder"
+  measures = ["spearman", "kendall_b"]`), `test "t" {`, `ties "byorder" {
+  rank = "first"
+}
+test "t" {`, 1)
+	res := mustCompute(t, plan(t, src, map[string]string{"d.csv": pairCSV(x, y, nil)})).Results
+	if res[0].PMethod != "permutation" || !(res[0].PValue > 0) || res[1].PMethod != "exact" {
+		t.Errorf("p = %v (%s), %v (%s); want a permutation p-value for spearman (12! orderings), exact for tau-b",
+			res[0].PValue, res[0].PMethod, res[1].PValue, res[1].PMethod)
+	}
+}
+
+// TestWithheldPValuesStayInTheFamily: an asymptotic p-value withheld at
+// small n still counts in the family size, so Bonferroni multiplies the
+// others by the full m.
+func TestWithheldPValuesStayInTheFamily(t *testing.T) {
+	x, y := noisy(60, 2, 4)
+	g := make([]float64, len(x))
+	for i := range g {
+		g[i] = 1
+	}
+	// Group 0: four perfectly ordered rows, whose t p-value (0) is withheld.
+	for i := 0; i < 4; i++ {
+		x[i], y[i], g[i] = float64(i), float64(i), 0
+	}
+	src := strings.Replace(testRecipe(`measures = ["spearman"]
+  p_value = "asymptotic"
+  adjust = "bonferroni"`), `y = ["y"]`, `y = ["y"]
+  by = "g"`, 1)
+	res := mustCompute(t, plan(t, src, map[string]string{"d.csv": pairCSV(x, y, map[string][]float64{"g": g})})).Results
+	if len(res) != 3 || !math.IsNaN(res[1].PValue) || !math.IsNaN(res[1].PAdjusted) {
+		t.Fatalf("group 0 should be withheld: %+v", res)
+	}
+	for _, r := range []Result{res[0], res[2]} {
+		if want := math.Min(1, 3*r.PValue); math.Abs(r.PAdjusted-want) > 1e-15 {
+			t.Errorf("group %s: p_adjusted = %v, want 3 × %v", r.Group, r.PAdjusted, r.PValue)
+		}
+	}
+}
+
+// TestTinyPValuesAreBounded: a t tail that underflows is written as the
+// bound 1e-300 with a note, never as 0; a result without a p-value has no
+// p_method.
+func TestTinyPValuesAreBounded(t *testing.T) {
+	var x, y []float64
+	for i := 0; i < 300; i++ {
+		x = append(x, float64(i))
+		y = append(y, float64(i)+1e-4*float64(i%3))
+	}
+	y[10] = y[11] // one tie keeps it off the exact untied routes
+	r := computeOne(t, `measures = ["spearman"]
+  p_value = "asymptotic"`, pairCSV(x, y, nil))[0]
+	if r.PValue != pFloor || !slices.ContainsFunc(r.Warnings, func(w string) bool { return strings.Contains(w, "the bound 1e-300 is written") }) {
+		t.Errorf("p = %v, notes %q", r.PValue, r.Warnings)
+	}
+	flat := computeOne(t, `measures = ["spearman"]`, pairCSV([]float64{1, 2, 3, 4, 5}, []float64{2, 2, 2, 2, 2}, nil))[0]
+	if flat.PMethod != "" || flat.CIMethod != "" {
+		t.Errorf("constant column: p_method %q, ci_method %q; want none", flat.PMethod, flat.CIMethod)
 	}
 }

@@ -94,7 +94,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 	}
 
 	results := make([]Result, len(t.Measures))
-	methods := make([]pChoice, len(t.Measures))
+	choices := make([]pChoice, len(t.Measures))
 	var counts *stats.PairCounts // Kendall's pair counts, computed once
 	for i, m := range t.Measures {
 		r := Result{
@@ -106,17 +106,8 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 			CIMethod: intervalName(t, m),
 		}
 		r.Warnings = slices.Clone(base)
-		methods[i] = pMethodFor(t, m, s, tied)
-		r.PMethod = methods[i].method.String()
 		if defined {
-			if m == stats.Spearman {
-				r.Warnings = append(r.Warnings, tieWarnings(t, pair, n, shareX, shareY)...)
-				if t.Ties.Rule != stats.TieAverage && tied {
-					r.Warnings = append(r.Warnings, fmt.Sprintf(
-						"ranks use the %q tie rule: with ties this is not Spearman's rho with midranks, and its p-value and interval assume average ranks",
-						t.Ties.Rule.String()))
-				}
-			}
+			choices[i] = pMethodFor(t, m, s, tied)
 			switch {
 			case m == stats.Spearman && k > 0:
 				r.Estimate = stats.PartialSpearman(s.x, s.y, s.z, t.Ties.Rule)
@@ -139,11 +130,17 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 				}
 				r.Estimate = counts.Estimate(m)
 			}
+			r.Warnings = append(r.Warnings, tieWarnings(t, m, pair, s, shareX, shareY, counts, choices[i])...)
+			if k > 0 && math.IsNaN(r.Estimate) && !slices.ContainsFunc(r.Warnings, func(w string) bool { return strings.HasPrefix(w, "infinite") }) {
+				r.Warnings = append(r.Warnings, fmt.Sprintf(
+					"the partial correlation is undefined: after removing %s, nothing of %s or %s is left to correlate (a control determines its ranks or values, or the controls are collinear)",
+					joinAnd(t.Controls), pair.X, pair.Y))
+			}
 		}
 		results[i] = r
 	}
 
-	if err := pValues(env, c, results, methods, counts); err != nil {
+	if err := pValues(env, c, results, choices, counts); err != nil {
 		return nil, err
 	}
 	if err := intervals(env, c, results); err != nil {
@@ -154,13 +151,21 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 		r := &results[i]
 		m := t.Measures[i]
 		if !math.IsNaN(r.Estimate) {
-			r.Warnings = append(r.Warnings, inferenceWarnings(t, m, r, methods[i], tied)...)
+			r.Warnings = append(r.Warnings, choices[i].notes...)
+			r.Warnings = append(r.Warnings, inferenceWarnings(t, m, r, choices[i], s, tied)...)
 		} else {
 			r.PValue, r.CILow, r.CIHigh = math.NaN(), math.NaN(), math.NaN()
+			r.pFamily = math.NaN()
 			if len(r.Warnings) == len(commonNotes(s)) {
 				// Every undefined value says why; this is the catch-all.
 				r.Warnings = append(r.Warnings, "the estimate is undefined for these data")
 			}
+		}
+		if !math.IsNaN(r.PValue) {
+			r.PMethod = choices[i].method.String()
+		}
+		if math.IsNaN(r.CILow) && math.IsNaN(r.CIHigh) {
+			r.CIMethod = ""
 		}
 		if t.Adjust == stats.AdjustNone {
 			// No family adjustment: the adjusted p-value is the p-value.
@@ -200,24 +205,25 @@ func monotoneNote(s sample) []string {
 		100*mc.R2Monotone, 100*mc.R2Free)}
 }
 
+// pFloor is the smallest p-value the result record states: below it the
+// methods here do not resolve the value (a t or normal tail this small is
+// dominated by the approximation's error, an exact tail may underflow), so
+// a smaller p is written as this bound with a note, never as 0.
+const pFloor = 1e-300
+
 // inferenceWarnings flags p-values and intervals that cannot be taken at
-// face value. An asymptotic p-value of a rank measure that falls below the
-// smallest p-value any exact permutation test could give at this n is
-// withheld (set to NaN), because no exact analysis could support it.
-func inferenceWarnings(t *recipe.Test, m stats.Measure, r *Result, pc pChoice, tied bool) []string {
+// face value, and applies the record's rules to them: an asymptotic
+// p-value of a rank measure that falls below the smallest p-value any exact
+// test could give at this n is withheld (NaN), because no exact analysis
+// could support it; a p-value below pFloor is written as that bound; a
+// zero-width interval is left out. The p-value as computed, before any of
+// this, stays in r.pFamily for the multiplicity adjustment.
+func inferenceWarnings(t *recipe.Test, m stats.Measure, r *Result, pc pChoice, s sample, tied bool) []string {
 	var w []string
-	interval := !math.IsNaN(r.CILow) || !math.IsNaN(r.CIHigh)
+	r.pFamily = r.PValue
 	if math.Abs(r.Estimate) == 1 {
-		msg := "a perfect association in the sample"
-		if interval {
-			msg += ": the interval collapses to a point"
-		}
-		if pc.method == stats.PT && len(t.Controls) == 0 {
-			msg += "; the t approximation's p-value is its limit, 0"
-		}
-		w = append(w, msg)
+		w = append(w, "a perfect association in the sample")
 	}
-	w = append(w, pc.notes...)
 	asymptotic := pc.method == stats.PT || pc.method == stats.PNormal
 	switch {
 	case r.N >= smallN:
@@ -225,20 +231,40 @@ func inferenceWarnings(t *recipe.Test, m stats.Measure, r *Result, pc pChoice, t
 		floor := exactFloor(r.N, r.Alternative == stats.TwoSided.String() && !tied)
 		if r.PValue < floor {
 			w = append(w, fmt.Sprintf("the %s approximation gives p = %.2g, below %.2g, the smallest exact p-value attainable with n = %d pairs: the p-value is withheld (p_value = \"auto\" or \"exact\" gives the exact one)",
-				r.PMethod, r.PValue, floor, r.N))
+				pc.method, r.PValue, floor, r.N))
 			r.PValue = math.NaN()
 		} else {
-			w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can differ noticeably from the exact one (p_value = \"auto\" or \"exact\" gives the exact one)", r.N, r.PMethod))
+			w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can differ noticeably from the exact one (p_value = \"auto\" or \"exact\" gives the exact one)", r.N, pc.method))
 		}
-	case pc.method == stats.PExact:
-		w = append(w, fmt.Sprintf("n = %d is small: the p-value is exact, but the test has little power, so only a strong association can reach significance", r.N))
+	case pc.method == stats.PExact || pc.method == stats.PPermutation:
+		// The smallest attainable p: one arrangement in all of them, or
+		// its mirror image too when the null is symmetric (no ties).
+		least := 1 / stats.Arrangements(s.x, s.y)
+		if !tied && r.Alternative == stats.TwoSided.String() {
+			least *= 2
+		}
+		if least > 0.05 {
+			w = append(w, fmt.Sprintf("with n = %d no test of these data can reach p < 0.05: the smallest attainable p-value is %.2g", r.N, least))
+		} else {
+			w = append(w, fmt.Sprintf("n = %d is small: the p-value is exact, but the test has little power, so only a strong association can reach significance", r.N))
+		}
 	default:
 		w = append(w, fmt.Sprintf("n = %d is small: the test has little power, so only a strong association can reach significance", r.N))
 	}
-	if r.PValue == 0 && pc.method == stats.PExact {
-		w = append(w, "the exact p-value is below 1e-308, the smallest number the result record can hold; it is written as 0")
+	if r.PValue < pFloor {
+		w = append(w, fmt.Sprintf("p is below %.0e, further out than the %s method resolves: the bound %.0e is written", pFloor, pc.method, pFloor))
+		r.PValue = pFloor
 	}
-	if !interval && t.Interval.Method == recipe.IntervalFisher {
+	interval := !math.IsNaN(r.CILow) || !math.IsNaN(r.CIHigh)
+	switch {
+	case interval && r.CILow == r.CIHigh:
+		why := "its standard error is 0"
+		if math.Abs(r.Estimate) == 1 {
+			why = "the sample association is perfect"
+		}
+		w = append(w, fmt.Sprintf("no interval: the %s interval has zero width here (%s), which says nothing about the population value", r.CIMethod, why))
+		r.CILow, r.CIHigh = math.NaN(), math.NaN()
+	case !interval && t.Interval.Method == recipe.IntervalFisher:
 		// (A bootstrap interval that failed has said why already.)
 		w = append(w, intervalGap(t, m, r))
 	}
@@ -271,27 +297,56 @@ func exactFloor(n int, mirrored bool) float64 {
 	return 1 / f
 }
 
-// tieWarnings flags columns with more tied values than the test's ties
-// block allows, suggesting Kendall's tau-b when the test does not already
-// report it.
-func tieWarnings(t *recipe.Test, pair recipe.Pair, n int, sx, sy float64) []string {
+// tieWarnings says what ties do to measure m on this sample. For
+// Spearman's rho: columns with more tied values than the ties block's
+// max_share (suggesting Kendall's tau-b when the test does not report it
+// and can), and a tie rule other than midranks. For gamma and tau-a, which
+// treat tied pairs in ways a reader may not expect: how many pairs that is.
+func tieWarnings(t *recipe.Test, m stats.Measure, pair recipe.Pair, s sample, sx, sy float64, counts *stats.PairCounts, pc pChoice) []string {
+	n := len(s.x)
+	heavy := sx > t.Ties.MaxShare || sy > t.Ties.MaxShare
 	var w []string
-	// Kendall's measures have no partial form, so with controls there is
-	// nothing to suggest.
-	hasTauB := slices.Contains(t.Measures, stats.KendallB) || len(t.Controls) > 0
-	for _, side := range []struct {
-		name  string
-		share float64
-	}{{pair.X, sx}, {pair.Y, sy}} {
-		if side.share > t.Ties.MaxShare {
-			tied := int(math.Round(side.share * float64(n)))
-			// Round down so that a share just under 1 never reads 100%.
-			msg := fmt.Sprintf("%d of %d %s values (%.0f%%) equal another value (above max_share %g)",
-				tied, n, side.name, math.Floor(100*side.share), t.Ties.MaxShare)
-			if !hasTauB {
-				msg += "; Kendall's tau-b is often preferred when ties are this many"
+	switch m {
+	case stats.Spearman:
+		// Kendall's measures have no partial form, so with controls there
+		// is nothing to suggest.
+		suggest := !slices.Contains(t.Measures, stats.KendallB) && len(t.Controls) == 0
+		for _, side := range []struct {
+			name  string
+			share float64
+		}{{pair.X, sx}, {pair.Y, sy}} {
+			if side.share > t.Ties.MaxShare {
+				tied := int(math.Round(side.share * float64(n)))
+				// Round down so that a share just under 1 never reads 100%.
+				msg := fmt.Sprintf("%d of %d %s values (%.0f%%) equal another value (above max_share %g)",
+					tied, n, side.name, math.Floor(100*side.share), t.Ties.MaxShare)
+				if suggest {
+					msg += "; Kendall's tau-b is often preferred when ties are this many"
+				}
+				w = append(w, msg)
+			}
+		}
+		if t.Ties.Rule != stats.TieAverage && (sx > 0 || sy > 0) {
+			msg := fmt.Sprintf("ranks use the %q tie rule: with ties this is not Spearman's rho with midranks", t.Ties.Rule.String())
+			switch pc.route {
+			case routeEnumerate, routeMonteCarlo:
+				msg += "; its p-value permutes these ranks, but its interval assumes average ranks"
+			default:
+				msg += ", and its p-value and interval assume average ranks"
 			}
 			w = append(w, msg)
+		}
+	case stats.Gamma, stats.KendallA:
+		if counts == nil || !heavy {
+			break
+		}
+		all := counts.Pairs()
+		tiedPairs := counts.TiedX + counts.TiedY - counts.TiedXY
+		share := math.Floor(100 * float64(tiedPairs) / float64(all))
+		if m == stats.Gamma {
+			w = append(w, fmt.Sprintf("gamma leaves out the %d of %d pairs (%.0f%%) tied in %s or %s, so with this many ties it can be much larger in size than tau-b, which counts them", tiedPairs, all, share, pair.X, pair.Y))
+		} else {
+			w = append(w, fmt.Sprintf("tau-a keeps the %d of %d pairs (%.0f%%) tied in %s or %s in its denominator, so here it cannot exceed %.3f in size; tau-b corrects for ties", tiedPairs, all, share, pair.X, pair.Y, float64(all-tiedPairs)/float64(all)))
 		}
 	}
 	return w

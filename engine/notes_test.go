@@ -27,7 +27,7 @@ func TestNotesTellTheReaderWhatToDistrust(t *testing.T) {
 		{
 			name: "perfect_n4_spearman", measure: "spearman", test: `p_value = "asymptotic"`,
 			data:  "x,y\n1,10\n2,20\n3,30\n4,40\n",
-			want:  []string{"perfect association", "collapses to a point", "limit, 0", "below 0.083", "withheld"},
+			want:  []string{"perfect association", "zero width here (the sample association is perfect)", "below 0.083", "withheld"},
 			pNull: true, estimate: 1,
 		},
 		{
@@ -50,7 +50,7 @@ func TestNotesTellTheReaderWhatToDistrust(t *testing.T) {
 			// permutations); auto computes it instead of withholding t's 0.
 			name: "perfect_n4_auto_is_exact", measure: "spearman",
 			data:     "x,y\n1,10\n2,20\n3,30\n4,40\n",
-			want:     []string{"perfect association", "the p-value is exact, but the test has little power"},
+			want:     []string{"perfect association", "with n = 4 no test of these data can reach p < 0.05: the smallest attainable p-value is 0.083"},
 			absent:   []string{"withheld", "limit, 0"},
 			estimate: 1,
 		},
@@ -64,7 +64,14 @@ func TestNotesTellTheReaderWhatToDistrust(t *testing.T) {
 		{
 			name: "min_rule_with_ties", measure: "spearman", test: `ties = "low"`,
 			data:     "x,y\n1,2\n1,1\n3,4\n4,3\n5,6\n6,5\n7,8\n8,7\n9,9\n10,11\n11,10\n",
-			want:     []string{`"min" tie rule`, "assume average ranks"},
+			want:     []string{`"min" tie rule`, "its p-value permutes these ranks, but its interval assumes average ranks"},
+			estimate: math.NaN(),
+		},
+		{
+			name: "min_rule_with_ties_asymptotic", measure: "spearman", test: `ties = "low"
+  p_value = "asymptotic"`,
+			data:     "x,y\n1,2\n1,1\n3,4\n4,3\n5,6\n6,5\n7,8\n8,7\n9,9\n10,11\n11,10\n",
+			want:     []string{`"min" tie rule`, "its p-value and interval assume average ranks"},
 			estimate: math.NaN(),
 		},
 		{

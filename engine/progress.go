@@ -79,7 +79,7 @@ func (p *progress) redraw(final bool) {
 	p.last = now
 	line := fmt.Sprintf("computing: %d of %d cells", p.done.Load(), p.cells)
 	if d := p.resample.Load(); d > 0 {
-		line += fmt.Sprintf(", %d resamples", d)
+		line += fmt.Sprintf(", %d permutation and bootstrap draws", d)
 	}
 	fmt.Fprintf(p.w, "\r%s\x1b[K", line)
 	p.shown = true

@@ -19,7 +19,7 @@ func TestProgressLine(t *testing.T) {
 	d(2048, 4096) // late report from a slower worker: no growth
 	p.cellDone()
 	out := buf.String()
-	if !strings.Contains(out, "\rcomputing: 1 of 3 cells, 3072 resamples") {
+	if !strings.Contains(out, "\rcomputing: 1 of 3 cells, 3072 permutation and bootstrap draws") {
 		t.Errorf("progress line = %q", out)
 	}
 	p.finish()

@@ -25,6 +25,11 @@ type Result struct {
 	TiesY        float64  `json:"ties_y"`
 	Warnings     []string `json:"warnings"`
 	Controls     []string `json:"controls"` // columns partialled out; empty for a plain correlation
+
+	// pFamily is the p-value as computed, before it was withheld or
+	// bounded: the multiplicity adjustment counts every result that has
+	// one, so withholding a p-value cannot shrink the family.
+	pFamily float64
 }
 
 // recordColumns are the result record's keys in contract order. Add keys at
