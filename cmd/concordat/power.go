@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -98,6 +99,25 @@ spearman (Bonett & Wright 2000), 0.437/(n-4) for kendall_b (Fieller, Hartley
 		}
 	}
 
+	// The measure's own symbol heads the column: tau for Kendall.
+	sym := "rho"
+	if m == stats.KendallB {
+		sym = "tau"
+	}
+	// An exact test of a rank correlation cannot give p below 1/n!
+	// (2/n! two-sided): below that n the Fisher z approximation would
+	// promise power where there is none.
+	unreachable := func(n int) bool {
+		if m == stats.PearsonR {
+			return false
+		}
+		least := 1 / math.Gamma(float64(n)+1)
+		if a == stats.TwoSided {
+			least *= 2
+		}
+		return least > *alpha
+	}
+	var footnotes []string
 	tw := tabwriter.NewWriter(stdout, 0, 0, 2, ' ', tabwriter.AlignRight)
 	sides := "two-sided"
 	if a != stats.TwoSided {
@@ -105,21 +125,41 @@ spearman (Bonett & Wright 2000), 0.437/(n-4) for kendall_b (Fieller, Hartley
 	}
 	fmt.Fprintf(stdout, "%s, %s test at alpha = %g (Fisher z approximation)\n", *measure, sides, *alpha)
 	if len(ns) > 0 {
-		fmt.Fprintln(tw, "rho\tn\tpower\t")
+		fmt.Fprintf(tw, "%s\tn\tpower\t\n", sym)
 		for _, r := range rhos {
 			for _, n := range ns {
-				fmt.Fprintf(tw, "%s\t%d\t%.3f\t\n", trimFloat(r), n, stats.CorrelationPower(m, r, n, *alpha, a))
+				if unreachable(n) {
+					fmt.Fprintf(tw, "%g\t%d\t0 *\t\n", r, n)
+					footnotes = append(footnotes, fmt.Sprintf("* with n = %d no exact test can reach p < %g, so the power is 0", n, *alpha))
+					continue
+				}
+				fmt.Fprintf(tw, "%g\t%d\t%.3f\t\n", r, n, stats.CorrelationPower(m, r, n, *alpha, a))
 			}
 		}
 	} else {
-		fmt.Fprintln(tw, "rho\tpower\tn needed\t")
+		fmt.Fprintf(tw, "%s\tpower\tn needed\t\n", sym)
 		for _, r := range rhos {
 			for _, p := range powers {
-				fmt.Fprintf(tw, "%s\t%s\t%d\t\n", trimFloat(r), trimFloat(p), stats.CorrelationSampleSize(m, r, p, *alpha, a))
+				n := stats.CorrelationSampleSize(m, r, p, *alpha, a)
+				for n > 0 && unreachable(n) {
+					n++
+				}
+				cell := strconv.Itoa(n)
+				if n <= 0 {
+					cell = "unreachable *"
+					footnotes = append(footnotes, fmt.Sprintf("* %s = %g is too close to 0: no n up to the search limit reaches power %g", sym, r, p))
+				}
+				fmt.Fprintf(tw, "%g\t%g\t%s\t\n", r, p, cell)
 			}
 		}
 	}
 	tw.Flush()
+	for _, f := range slices.Compact(footnotes) {
+		fmt.Fprintln(stdout, f)
+	}
+	if len(ns) > 0 && slices.ContainsFunc(ns, func(n int) bool { return n < 10 && !unreachable(n) }) && m != stats.PearsonR {
+		fmt.Fprintln(stdout, "note: below n = 10 the Fisher z approximation is rough for rank correlations; the exact test's power can be much lower")
+	}
 	return exitOK
 }
 
@@ -137,14 +177,4 @@ func floatList(flag, s string) ([]float64, error) {
 		out = append(out, v)
 	}
 	return out, nil
-}
-
-// trimFloat prints a flag value as the user would have typed it.
-func trimFloat(v float64) string {
-	s := fmt.Sprintf("%.4f", v)
-	s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-	if s == "-0" || math.IsNaN(v) {
-		return fmt.Sprint(v)
-	}
-	return s
 }
