@@ -478,7 +478,7 @@ func (d *decoder) decodeTest(b *hclsyntax.Block, pairings *names[*Pairing], ties
 		}
 	}
 	if a := c.attrs["controls"]; a != nil {
-		d.decodeControls(a, t)
+		d.decodeControls(a, t, c.attrs["measures"], c.attrs["p_value"])
 	}
 
 	var first *hclsyntax.Block
@@ -525,7 +525,11 @@ func measuresOf(w string) []stats.Measure {
 // that are partialled out of spearman and pearson. Kendall-type measures
 // have no partial form with an agreed test, and the exact and permutation
 // nulls here are for two variables, so both are refused with controls.
-func (d *decoder) decodeControls(a *attr, t *Test) {
+//
+// Those errors point at the measures or p_value attribute when the recipe
+// writes one (a default cannot be the problem: spearman and auto are both
+// fine).
+func (d *decoder) decodeControls(a *attr, t *Test, measures, pValue *attr) {
 	items, ok := d.list(a)
 	if !ok {
 		return
@@ -564,17 +568,19 @@ func (d *decoder) decodeControls(a *attr, t *Test) {
 			kendall = append(kendall, m.String())
 		}
 	}
-	if len(kendall) > 0 {
+	if len(kendall) > 0 && measures != nil {
 		verb := "has"
 		if len(kendall) > 1 {
 			verb = "have"
 		}
-		d.errorf(a.Expr.Range(), &ctx, "Measure has no partial form",
-			"With controls, only \"spearman\" (partial Spearman: Pearson's partial correlation of ranks) and \"pearson\" can be computed; %s %s no partial form with an agreed test. Move them to a test without controls.",
-			quoteList(kendall), verb)
+		mctx := measures.SrcRange
+		d.errorf(measures.Expr.Range(), &mctx, "Measure has no partial form",
+			"With controls, only \"spearman\" (partial Spearman: Pearson's partial correlation of ranks) and \"pearson\" can be computed; %s %s no partial form with an agreed test. Move %s to a test without controls.",
+			quoteList(kendall), verb, map[bool]string{true: "it", false: "them"}[len(kendall) == 1])
 	}
-	if t.PValue == PExact || t.PValue == PPermutation {
-		d.errorf(a.Expr.Range(), &ctx, "P-value method unavailable with controls",
+	if (t.PValue == PExact || t.PValue == PPermutation) && pValue != nil {
+		pctx := pValue.SrcRange
+		d.errorf(pValue.Expr.Range(), &pctx, "P-value method unavailable with controls",
 			"A partial correlation is tested with Student's t on n − 2 − k degrees of freedom; p_value = %s has no form for partial correlations here. Use \"auto\" or \"asymptotic\".",
 			quote(t.PValue.String()))
 	}

@@ -345,8 +345,8 @@ pairing "p" {
 }`, []wantDiag{
 			{13, 22, "Control is also paired", `"b" is paired in pairing "p" (at <test>.hcl:7:8)`},
 			{13, 27, "Empty column name", "controls must not be empty"},
-			{13, 14, "Measure has no partial form", `"gamma" has no partial form`},
-			{13, 14, "P-value method unavailable with controls", `p_value = "permutation" has no form for partial correlations`},
+			{11, 14, "Measure has no partial form", `"gamma" has no partial form with an agreed test. Move it to`},
+			{12, 14, "P-value method unavailable with controls", `p_value = "permutation" has no form for partial correlations`},
 		}},
 		{"empty controls", head + `test "t" {
   pairing  = "p"
