@@ -2,55 +2,14 @@ package stats
 
 import (
 	"cmp"
-	"encoding/csv"
 	"math"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"slices"
-	"strconv"
-	"strings"
 	"testing"
 )
 
 var allAdjustments = []Adjustment{AdjustNone, Bonferroni, Holm, Hochberg, Hommel, BH, BY}
-
-// readRefFile reads a reference file in the layout of stats_reference.csv
-// (case,quantity,value; a value is a space-separated vector, NA read as
-// NaN) into case → quantity → values.
-func readRefFile(t *testing.T, path string) map[string]refCase {
-	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatalf("open reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", path, err)
-	}
-	cases := map[string]refCase{}
-	for i, rec := range recs[1:] {
-		if len(rec) != 3 {
-			t.Fatalf("%s line %d: %d fields, want 3", path, i+2, len(rec))
-		}
-		var vals []float64
-		for _, s := range strings.Fields(rec[2]) {
-			v := math.NaN()
-			if s != "NA" {
-				if v, err = strconv.ParseFloat(s, 64); err != nil {
-					t.Fatalf("%s line %d: %v", path, i+2, err)
-				}
-			}
-			vals = append(vals, v)
-		}
-		if cases[rec[0]] == nil {
-			cases[rec[0]] = refCase{}
-		}
-		cases[rec[0]][rec[1]] = vals
-	}
-	return cases
-}
 
 // TestAdjustAgainstR compares every method with R 4.2.2's p.adjust on the
 // families of testdata/ref/adjust_reference.csv (script

@@ -1,7 +1,6 @@
 package stats
 
 import (
-	"encoding/csv"
 	"flag"
 	"fmt"
 	"math"
@@ -240,15 +239,7 @@ func TestKendallExactEnumeration(t *testing.T) {
 // 0.16666666666651503 for P(S ≥ 3) = 1/6 at n = 3), so it is compared
 // within 1e-11.
 func TestKendallExactAgainstR(t *testing.T) {
-	f, err := os.Open(kendallRPath)
-	if err != nil {
-		t.Fatalf("open R reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", kendallRPath, err)
-	}
+	recs := readCSV(t, kendallRPath)
 	if len(recs) < 1000 {
 		t.Fatalf("%s has %d rows, want over 1000", kendallRPath, len(recs))
 	}
@@ -367,15 +358,7 @@ func TestKendallExactN1000(t *testing.T) {
 	if *update {
 		writeKendallExact(t, n, 100000)
 	}
-	f, err := os.Open(kendallExactPath)
-	if err != nil {
-		t.Fatalf("open exact reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", kendallExactPath, err)
-	}
+	recs := readCSV(t, kendallExactPath)
 	zeros, rows := 0, 0
 	for line, rec := range recs[1:] {
 		nn, err1 := strconv.Atoi(rec[0])

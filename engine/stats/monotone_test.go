@@ -1,14 +1,10 @@
 package stats
 
 import (
-	"encoding/csv"
 	"math"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"slices"
-	"strconv"
-	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -20,36 +16,8 @@ var monotoneRefPath = filepath.Join("..", "..", "testdata", "ref", "monotone_ref
 
 // loadMonotoneRef reads the case,quantity,value file into case → quantity →
 // vector.
-func loadMonotoneRef(t *testing.T) map[string]map[string][]float64 {
-	t.Helper()
-	f, err := os.Open(monotoneRefPath)
-	if err != nil {
-		t.Fatalf("open reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", monotoneRefPath, err)
-	}
-	cases := map[string]map[string][]float64{}
-	for i, rec := range recs[1:] {
-		if len(rec) != 3 {
-			t.Fatalf("%s line %d: %d fields, want 3", monotoneRefPath, i+2, len(rec))
-		}
-		var vals []float64
-		for _, s := range strings.Fields(rec[2]) {
-			v, err := strconv.ParseFloat(s, 64)
-			if err != nil {
-				t.Fatalf("%s line %d: %v", monotoneRefPath, i+2, err)
-			}
-			vals = append(vals, v)
-		}
-		if cases[rec[0]] == nil {
-			cases[rec[0]] = map[string][]float64{}
-		}
-		cases[rec[0]][rec[1]] = vals
-	}
-	return cases
+func loadMonotoneRef(t *testing.T) map[string]refCase {
+	return readRefFile(t, monotoneRefPath)
 }
 
 // isoTol is the tolerance for fitted values: 1e-12 relative to the size of

@@ -2,15 +2,12 @@ package stats
 
 import (
 	"cmp"
-	"encoding/csv"
 	"math"
 	"math/big"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"slices"
 	"strconv"
-	"strings"
 	"testing"
 )
 
@@ -336,40 +333,9 @@ func TestOrdinalJobSatisfaction(t *testing.T) {
 // Hmisc; see its header).
 var ordinalReferencePath = filepath.Join("..", "..", "testdata", "ref", "ordinal_reference.csv")
 
-// loadOrdinalReference reads case,quantity,value rows as loadReference does
-// (NA is NaN; a value may be a space-separated vector).
+// loadOrdinalReference reads the case,quantity,value file (readRefFile).
 func loadOrdinalReference(t *testing.T) map[string]refCase {
-	t.Helper()
-	f, err := os.Open(ordinalReferencePath)
-	if err != nil {
-		t.Fatalf("open reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", ordinalReferencePath, err)
-	}
-	cases := map[string]refCase{}
-	for i, rec := range recs[1:] {
-		if len(rec) != 3 {
-			t.Fatalf("%s line %d: %d fields, want 3", ordinalReferencePath, i+2, len(rec))
-		}
-		var vals []float64
-		for _, s := range strings.Fields(rec[2]) {
-			v := math.NaN()
-			if s != "NA" {
-				if v, err = strconv.ParseFloat(s, 64); err != nil {
-					t.Fatalf("%s line %d: %v", ordinalReferencePath, i+2, err)
-				}
-			}
-			vals = append(vals, v)
-		}
-		if cases[rec[0]] == nil {
-			cases[rec[0]] = refCase{}
-		}
-		cases[rec[0]][rec[1]] = vals
-	}
-	return cases
+	return readRefFile(t, ordinalReferencePath)
 }
 
 // TestOrdinalAgainstR checks estimates and standard errors against

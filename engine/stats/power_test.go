@@ -1,10 +1,8 @@
 package stats
 
 import (
-	"encoding/csv"
 	"math"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"strconv"
 	"testing"
@@ -32,15 +30,7 @@ var altByName = map[string]Alternative{"two-sided": TwoSided, "greater": Greater
 //     differences in the file are 0.084 at n = 5, 0.033 at n = 10, 0.011
 //     at n = 30 and 0.0003 at n = 1000, each below the bound.
 func TestPowerAgainstR(t *testing.T) {
-	f, err := os.Open(powerRefPath)
-	if err != nil {
-		t.Fatalf("open reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", powerRefPath, err)
-	}
+	recs := readCSV(t, powerRefPath)
 	num := func(s string) float64 {
 		if s == "NA" {
 			return math.NaN()

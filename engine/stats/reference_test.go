@@ -1,9 +1,7 @@
 package stats
 
 import (
-	"encoding/csv"
 	"math"
-	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
@@ -19,28 +17,27 @@ var referencePath = filepath.Join("..", "..", "testdata", "ref", "stats_referenc
 // (and NaN) is read as NaN.
 type refCase map[string][]float64
 
-func loadReference(t *testing.T) map[string]refCase {
+func loadReference(t *testing.T) map[string]refCase { return readRefFile(t, referencePath) }
+
+// readRefFile reads a reference file in the layout of stats_reference.csv
+// (case,quantity,value; a value is a space-separated vector, NA read as
+// NaN) into case → quantity → values. Every R script under testdata/ref
+// that writes this layout is read through it.
+func readRefFile(t *testing.T, path string) map[string]refCase {
 	t.Helper()
-	f, err := os.Open(referencePath)
-	if err != nil {
-		t.Fatalf("open reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", referencePath, err)
-	}
+	recs := readCSV(t, path)
 	cases := map[string]refCase{}
 	for i, rec := range recs[1:] {
 		if len(rec) != 3 {
-			t.Fatalf("%s line %d: %d fields, want 3", referencePath, i+2, len(rec))
+			t.Fatalf("%s line %d: %d fields, want 3", path, i+2, len(rec))
 		}
 		var vals []float64
 		for _, s := range strings.Fields(rec[2]) {
 			v := math.NaN()
 			if s != "NA" {
+				var err error
 				if v, err = strconv.ParseFloat(s, 64); err != nil {
-					t.Fatalf("%s line %d: %v", referencePath, i+2, err)
+					t.Fatalf("%s line %d: %v", path, i+2, err)
 				}
 			}
 			vals = append(vals, v)

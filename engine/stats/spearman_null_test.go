@@ -1,11 +1,9 @@
 package stats
 
 import (
-	"encoding/csv"
 	"math"
 	"math/big"
 	"math/rand/v2"
-	"os"
 	"path/filepath"
 	"slices"
 	"strconv"
@@ -290,15 +288,7 @@ type spearmanRefRow struct {
 func loadSpearmanNullReference(t *testing.T) []spearmanRefRow {
 	t.Helper()
 	path := filepath.Join("..", "..", "testdata", "ref", "spearman_null_reference.csv")
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatalf("open reference values: %v", err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatalf("read %s: %v", path, err)
-	}
+	recs := readCSV(t, path)
 	alts := map[string]Alternative{"two.sided": TwoSided, "greater": Greater, "less": Less, "": 0}
 	parse := func(s string, line int) float64 {
 		if s == "" {
