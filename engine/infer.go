@@ -36,9 +36,13 @@ type pChoice struct {
 // autoPermutationMaxN is the largest n for which p_value = "auto" turns to
 // Monte Carlo permutations when ties leave too many arrangements to
 // enumerate. Small tied samples are where the t and normal approximations
-// are least trustworthy and permutations cheapest (10 000 draws at n = 50
-// cost about what ranking 10⁶ values does); beyond it the tie-corrected
-// approximations serve, and a matrix of thousands of pairs stays fast.
+// are least trustworthy and permutations cheapest. Measured here on
+// five-level ordinal pairs (40 samples per n, p between 0.005 and 0.2,
+// against 200 000 permutations): the t p-value of rho and the normal
+// p-value of S were up to 11% and 14% off (relative) at n = 20–30, 8% and
+// 10% at n = 50, but 4% and 5% at n = 80, about the Monte Carlo error of
+// 10 000 draws there. Beyond n = 50 the tie-corrected approximations serve,
+// and a matrix of thousands of pairs stays fast.
 const autoPermutationMaxN = 50
 
 // pMethodFor picks the p-value computation of measure m in test t for a
