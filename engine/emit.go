@@ -7,6 +7,7 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
+	"math"
 	"slices"
 	"strconv"
 	"time"
@@ -102,7 +103,11 @@ func readableTable(title string, rows []Result) *render.Table {
 		}
 		row = append(row, render.Int(int64(r.N)), render.Real(r.Estimate), render.Interval(r.CILow, r.CIHigh))
 		if !sameLevel {
-			row = append(row, render.Text(render.Percent(r.CILevel)+"%"))
+			if math.IsNaN(r.CILevel) {
+				row = append(row, render.NoText())
+			} else {
+				row = append(row, render.Text(render.Percent(r.CILevel)+"%"))
+			}
 		}
 		if oneSided {
 			row = append(row, render.Text(r.Alternative))
@@ -165,15 +170,20 @@ func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, er
 // commonLevel returns the interval level shared by every row, and whether
 // there is one (tests of one table may declare different levels).
 func commonLevel(rows []Result) (float64, bool) {
-	if len(rows) == 0 {
-		return 0.95, true
-	}
-	for _, r := range rows[1:] {
-		if r.CILevel != rows[0].CILevel {
+	level := math.NaN()
+	for _, r := range rows {
+		switch {
+		case math.IsNaN(r.CILevel): // no interval: no level to show
+		case math.IsNaN(level):
+			level = r.CILevel
+		case r.CILevel != level:
 			return 0, false
 		}
 	}
-	return rows[0].CILevel, true
+	if math.IsNaN(level) {
+		return 0.95, true
+	}
+	return level, true
 }
 
 // stepRecord hashes what one test read and what it produced. The input hash

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"concordat/engine/stats"
@@ -24,6 +25,12 @@ const (
 	routeEnumerate           // every distinct arrangement of y against x
 	routeMonteCarlo          // random permutations, p = (b + 1)/(m + 1)
 )
+
+// minExceedances is the fewest permutations that must reach the observed
+// statistic for auto to keep a Monte Carlo p-value: with b = 10 the
+// estimate's relative standard error is about 1/√10 ≈ 30% (binomial; common
+// practice), and below that the p-value mostly reflects the draw count.
+const minExceedances = 10
 
 // pChoice is how one result's p-value is computed, the method the result
 // record reports, and any note the reader needs about the choice.
@@ -86,6 +93,11 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 	monteCarlo := pChoice{route: routeMonteCarlo, method: stats.PPermutation}
 	enumerate := pChoice{route: routeEnumerate, method: stats.PExact}
 	arrangements := arrangementsFor(t, m, s)
+	if m == stats.Spearman && t.Ties.Rule == stats.TieFirst {
+		// The "first" rule breaks every tie: the ranks are a permutation
+		// of 1..n, so the untied null of rho applies exactly.
+		tied = false
+	}
 	// exactUntied is the exact null without ties, when affordable.
 	exactUntied := func() (pChoice, bool) {
 		switch {
@@ -136,9 +148,13 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 		if tied {
 			why += " with ties"
 		}
+		many := fmt.Sprintf("about %.2g", arrangements)
+		if math.IsInf(arrangements, 1) {
+			many = "more than 1e308"
+		}
 		monteCarlo.notes = []string{fmt.Sprintf(
-			"an exact p-value is not affordable here (%s: about %.2g distinct arrangements); it is estimated from %d random permutations as (b + 1)/(m + 1)",
-			why, arrangements, t.Permutations)}
+			"an exact p-value is not affordable here (%s: %s distinct arrangements); it is estimated from %d random permutations as (b + 1)/(m + 1)",
+			why, many, t.Permutations)}
 		return monteCarlo
 	}
 	panic(fmt.Sprintf("engine: p-value method %v has no route", t.PValue))
@@ -186,13 +202,17 @@ func pValues(env cellEnv, c cellInput, results []Result, choices []pChoice, coun
 			r.PValue = stats.SpearmanEdgeworthP(r.Estimate, n, alt)
 			if farTail(r.Estimate, alt) {
 				if in, edgeP := stats.SpearmanEdgeworthReach(r.Estimate, n); !in {
+					// Past the series' reach neither it nor t can be
+					// trusted (t is 25–2000 times too small here), but
+					// the exact tail is below the series' value at its
+					// edge: report that bound, on the safe side.
 					if alt == stats.TwoSided {
-						edgeP *= 2
+						edgeP = math.Min(1, 2*edgeP)
 					}
-					r.PValue = stats.CorrelationT(r.Estimate, n, alt)
-					choices[i] = pChoice{route: routeT, method: stats.PT, notes: []string{fmt.Sprintf(
-						"rho = %.3f lies beyond the reach of the Edgeworth series at n = %d, so the t approximation is reported; this far out it can be many times smaller than the exact p-value, which is below about %.1g",
-						r.Estimate, n, edgeP)}}
+					r.PValue = edgeP
+					choices[i].notes = append(choices[i].notes, fmt.Sprintf(
+						"rho = %.3f lies beyond the reach of the Edgeworth series at n = %d: the p-value written, %.2g, is the series' tail where it still holds, an upper bound; the exact p-value is smaller",
+						r.Estimate, n, edgeP))
 				}
 			}
 		case routeT:
@@ -245,10 +265,63 @@ func pValues(env cellEnv, c cellInput, results []Result, choices []pChoice, coun
 			return err
 		}
 		for j, i := range batch.idx {
-			results[i].PValue = res.P[j]
+			r := &results[i]
+			r.PValue = res.P[j]
+			if batch.exact || math.IsNaN(r.PValue) {
+				continue
+			}
+			// b of m draws reached the observed value: p = (b + 1)/(m + 1).
+			b := int(math.Round(r.PValue*float64(res.Draws+1))) - 1
+			switch {
+			case b < minExceedances && t.PValue == recipe.PAuto:
+				// Too few exceedances to estimate so small a p: auto
+				// does not let the draw count cap it (a family
+				// adjustment would then find nothing), and the
+				// asymptotic approximation is closer in the far tail.
+				mc := r.PValue
+				if isKendall(t.Measures[i]) {
+					r.PValue = stats.KendallNormal(kendall(), alt)
+					choices[i] = pChoice{route: routeNormal, method: stats.PNormal}
+				} else {
+					r.PValue = stats.CorrelationT(r.Estimate, n, alt)
+					choices[i] = pChoice{route: routeT, method: stats.PT}
+				}
+				choices[i].notes = []string{fmt.Sprintf(
+					"only %d of %d random permutations reached the observed value, too few to estimate so small a p-value (the permutation estimate, %.2g, is little more than its floor 1/(m + 1)); the %s approximation is reported",
+					b, res.Draws, mc, choices[i].method)}
+			case b == 0:
+				choices[i].notes = append(choices[i].notes, fmt.Sprintf(
+					"no random permutation of %d reached the observed value: p = 1/(m + 1) = %.2g only bounds the p-value from above; more permutations resolve smaller p-values",
+					res.Draws, r.PValue))
+			}
 		}
 	}
 	return nil
+}
+
+// smallestP is the smallest p-value an exact permutation test of measure m
+// can give on this sample: the most extreme arrangement of y against x has
+// probability 1/A among the A distinct arrangements (arrangementsFor), and
+// a two-sided test adds its mirror image when that reaches the same |T|
+// (always without ties; with ties only when the tie structure is
+// symmetric, e.g. a binary x split 3/3). For rank statistics under
+// independence (e.g. Hollander & Wolfe, Nonparametric Statistical Methods,
+// 1973, ch. 8).
+func smallestP(t *recipe.Test, m stats.Measure, s sample, alt stats.Alternative) float64 {
+	least := 1 / arrangementsFor(t, m, s)
+	if alt != stats.TwoSided || len(s.x) < minPairs {
+		return least
+	}
+	xs, ys := slices.Clone(s.x), slices.Clone(s.y)
+	slices.Sort(xs)
+	slices.Sort(ys)
+	up := estimate(t, m, xs, ys, nil)
+	slices.Reverse(ys)
+	down := estimate(t, m, xs, ys, nil)
+	if math.Abs(math.Abs(up)-math.Abs(down)) <= 1e-12 {
+		least *= 2
+	}
+	return math.Min(1, least)
 }
 
 // farTail reports whether alternative alt asks for the tail that rho lies

@@ -326,10 +326,11 @@ func TestTextbookExampleThroughTheEngine(t *testing.T) {
 	}
 }
 
-// TestEdgeworthFarTailSaysT: beyond the reach of the Edgeworth series the
-// reported p-value is the t tail, so the record says t and the note bounds
-// the exact value; inside the reach the record says edgeworth.
-func TestEdgeworthFarTailSaysT(t *testing.T) {
+// TestEdgeworthFarTailIsBounded: beyond the reach of the Edgeworth series
+// neither the series nor t can be trusted (t is far too small there), so
+// the record carries the series' tail at its edge, an upper bound on the
+// exact p-value, with a note; inside the reach it carries the series.
+func TestEdgeworthFarTailIsBounded(t *testing.T) {
 	n := stats.SpearmanExactMaxN + 2
 	var x, near, mid []float64
 	for i := 0; i < n; i++ {
@@ -338,19 +339,26 @@ func TestEdgeworthFarTailSaysT(t *testing.T) {
 		mid = append(mid, float64((i*7)%n))
 	}
 	far := computeOne(t, `measures = ["spearman"]`, pairCSV(x, near, nil))[0]
-	if far.PMethod != "t" || !slices.ContainsFunc(far.Warnings, func(w string) bool {
-		return strings.Contains(w, "beyond the reach of the Edgeworth series") && strings.Contains(w, "below about")
+	_, edgeP := stats.SpearmanEdgeworthReach(far.Estimate, n)
+	if far.PMethod != "edgeworth" || far.PValue != 2*edgeP || !slices.ContainsFunc(far.Warnings, func(w string) bool {
+		return strings.Contains(w, "beyond the reach of the Edgeworth series") && strings.Contains(w, "an upper bound")
 	}) {
-		t.Errorf("rho = %.3f: p = %g (%s), notes %q", far.Estimate, far.PValue, far.PMethod, far.Warnings)
+		t.Errorf("rho = %.3f: p = %g (%s), want 2 × %g; notes %q", far.Estimate, far.PValue, far.PMethod, edgeP, far.Warnings)
 	}
-	if in := computeOne(t, `measures = ["spearman"]`, pairCSV(x, mid, nil))[0]; in.PMethod != "edgeworth" {
-		t.Errorf("rho = %.3f: p_method %s, want edgeworth", in.Estimate, in.PMethod)
+	// The exact two-sided p of these data is at least that of rho = 1,
+	// 2/n!; t would give less than that.
+	if floor := 2 / math.Gamma(float64(n)+1); !(far.PValue > floor) {
+		t.Errorf("p = %g below the exact floor %g", far.PValue, floor)
+	}
+	if in := computeOne(t, `measures = ["spearman"]`, pairCSV(x, mid, nil))[0]; in.PMethod != "edgeworth" || len(in.Warnings) != 0 {
+		t.Errorf("rho = %.3f: p_method %s, notes %q; want edgeworth without notes", in.Estimate, in.PMethod, in.Warnings)
 	}
 }
 
 // TestFirstRuleWithTiesRuns: under the "first" rule Spearman's ranks are all
-// distinct, so its exact test has n! arrangements however many ties the
-// values hold; the run samples permutations instead of failing.
+// distinct, a permutation of 1..n, so the untied exact null applies however
+// many ties the values hold (and enumeration, were it used, would have n!
+// arrangements: the run must not try to enumerate the values' few).
 func TestFirstRuleWithTiesRuns(t *testing.T) {
 	// Three levels each: few distinct arrangements of the values (at most
 	// 12!/(4!4!4!) = 34 650), but 12! orderings of "first" ranks.
@@ -365,9 +373,23 @@ func TestFirstRuleWithTiesRuns(t *testing.T) {
 }
 test "t" {`, 1)
 	res := mustCompute(t, plan(t, src, map[string]string{"d.csv": pairCSV(x, y, nil)})).Results
-	if res[0].PMethod != "permutation" || !(res[0].PValue > 0) || res[1].PMethod != "exact" {
-		t.Errorf("p = %v (%s), %v (%s); want a permutation p-value for spearman (12! orderings), exact for tau-b",
-			res[0].PValue, res[0].PMethod, res[1].PValue, res[1].PMethod)
+	want := stats.SpearmanExactP(res[0].Estimate, 12, stats.TwoSided)
+	if res[0].PMethod != "exact" || res[0].PValue != want || res[1].PMethod != "exact" {
+		t.Errorf("p = %v (%s), %v (%s); want spearman %v from the untied exact null, exact tau-b",
+			res[0].PValue, res[0].PMethod, res[1].PValue, res[1].PMethod, want)
+	}
+	// Past the exact null's n, p_value = "exact" samples (15! orderings)
+	// and says so, rather than enumerating the values' arrangements.
+	for i := 0; i < 8; i++ {
+		x = append(x, float64(i%3))
+		y = append(y, float64((i/2)%3))
+	}
+	src = strings.Replace(src, `measures = ["spearman", "kendall_b"]`, `measures = ["spearman"]
+  p_value = "exact"
+  permutations = 999`, 1)
+	big := mustCompute(t, plan(t, src, map[string]string{"d.csv": pairCSV(x, y, nil)})).Results[0]
+	if big.PMethod != "permutation" || !slices.ContainsFunc(big.Warnings, func(w string) bool { return strings.Contains(w, "not affordable") }) {
+		t.Errorf("n = 20, first rule, exact asked: p = %v (%s), notes %q", big.PValue, big.PMethod, big.Warnings)
 	}
 }
 
@@ -417,5 +439,52 @@ func TestTinyPValuesAreBounded(t *testing.T) {
 	flat := computeOne(t, `measures = ["spearman"]`, pairCSV([]float64{1, 2, 3, 4, 5}, []float64{2, 2, 2, 2, 2}, nil))[0]
 	if flat.PMethod != "" || flat.CIMethod != "" {
 		t.Errorf("constant column: p_method %q, ci_method %q; want none", flat.PMethod, flat.CIMethod)
+	}
+}
+
+// TestFewExceedances: when almost no random permutation reaches the
+// observed value, auto does not let the draw count cap the p-value (it
+// reports the asymptotic one, saying why), and an explicit permutation
+// test says that 1/(m + 1) only bounds p.
+func TestFewExceedances(t *testing.T) {
+	var x, y []float64
+	for i := 0; i < 40; i++ {
+		x = append(x, float64(i/4)) // ten levels, ties
+		y = append(y, float64(i/5)) // eight levels, ties
+	}
+	data := pairCSV(x, y, nil)
+	auto := computeOne(t, `measures = ["spearman", "kendall_b"]
+  permutations = 999`, data)
+	for _, r := range auto {
+		if (r.PMethod != "t" && r.PMethod != "normal") || !(r.PValue < 1e-10) ||
+			!slices.ContainsFunc(r.Warnings, func(w string) bool { return strings.Contains(w, "too few to estimate so small a p-value") }) {
+			t.Errorf("auto %s: p = %v (%s), notes %q", r.Measure, r.PValue, r.PMethod, r.Warnings)
+		}
+	}
+	perm := computeOne(t, `measures = ["spearman"]
+  p_value = "permutation"
+  permutations = 999`, data)[0]
+	if perm.PMethod != "permutation" || perm.PValue != 1.0/1000 ||
+		!slices.ContainsFunc(perm.Warnings, func(w string) bool { return strings.Contains(w, "only bounds the p-value from above") }) {
+		t.Errorf("permutation: p = %v (%s), notes %q", perm.PValue, perm.PMethod, perm.Warnings)
+	}
+}
+
+// TestSmallestAttainableP: with a binary x split 3/3 and perfect
+// separation, only 2 of the C(6, 3) = 20 distinct arrangements reach
+// |T| = max, so no two-sided test can go below 0.1 (counting
+// arrangements by hand); the note says so instead of promising power.
+func TestSmallestAttainableP(t *testing.T) {
+	data := pairCSV([]float64{0, 0, 0, 1, 1, 1}, []float64{1, 2, 3, 4, 5, 6}, nil)
+	r := computeOne(t, `measures = ["kendall_b"]`, data)[0]
+	if r.PMethod != "exact" || math.Abs(r.PValue-0.1) > 1e-15 ||
+		!slices.ContainsFunc(r.Warnings, func(w string) bool { return strings.Contains(w, "smallest attainable p-value is 0.1") }) {
+		t.Errorf("p = %v (%s), notes %q", r.PValue, r.PMethod, r.Warnings)
+	}
+	perm := computeOne(t, `measures = ["kendall_b"]
+  p_value = "permutation"
+  permutations = 10`, data)[0]
+	if slices.ContainsFunc(perm.Warnings, func(w string) bool { return strings.Contains(w, "is exact") }) && perm.PMethod != "exact" {
+		t.Errorf("a Monte Carlo p-value called exact: %q", perm.Warnings)
 	}
 }

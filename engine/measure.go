@@ -165,7 +165,8 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 			r.PMethod = choices[i].method.String()
 		}
 		if math.IsNaN(r.CILow) && math.IsNaN(r.CIHigh) {
-			r.CIMethod = ""
+			// No interval: no method and no level to report either.
+			r.CIMethod, r.CILevel = "", math.NaN()
 		}
 		if t.Adjust == stats.AdjustNone {
 			// No family adjustment: the adjusted p-value is the p-value.
@@ -228,31 +229,24 @@ func inferenceWarnings(t *recipe.Test, m stats.Measure, r *Result, pc pChoice, s
 	switch {
 	case r.N >= smallN:
 	case asymptotic && m != stats.PearsonR && len(t.Controls) == 0 && !math.IsNaN(r.PValue):
-		floor := exactFloor(r.N, r.Alternative == stats.TwoSided.String() && !tied)
+		floor := smallestP(t, m, s, t.Alternative)
 		if r.PValue < floor {
-			w = append(w, fmt.Sprintf("the %s approximation gives p = %.2g, below %.2g, the smallest exact p-value attainable with n = %d pairs: the p-value is withheld (p_value = \"auto\" or \"exact\" gives the exact one)",
+			w = append(w, fmt.Sprintf("the %s approximation gives p = %.2g, below %.2g, the smallest exact p-value attainable with these %d pairs: the p-value is withheld (p_value = \"auto\" or \"exact\" gives the exact one)",
 				pc.method, r.PValue, floor, r.N))
 			r.PValue = math.NaN()
 		} else {
 			w = append(w, fmt.Sprintf("n = %d is small: the %s approximation to the p-value can differ noticeably from the exact one (p_value = \"auto\" or \"exact\" gives the exact one)", r.N, pc.method))
 		}
-	case pc.method == stats.PExact || pc.method == stats.PPermutation:
-		// The smallest attainable p: one arrangement in all of them, or
-		// its mirror image too when the null is symmetric (no ties).
-		least := 1 / stats.Arrangements(s.x, s.y)
-		if !tied && r.Alternative == stats.TwoSided.String() {
-			least *= 2
-		}
-		if least > 0.05 {
-			w = append(w, fmt.Sprintf("with n = %d no test of these data can reach p < 0.05: the smallest attainable p-value is %.2g", r.N, least))
-		} else {
-			w = append(w, fmt.Sprintf("n = %d is small: the p-value is exact, but the test has little power, so only a strong association can reach significance", r.N))
-		}
+	case len(t.Controls) == 0 && smallestP(t, m, s, t.Alternative) > 0.05:
+		w = append(w, fmt.Sprintf("with n = %d no test of these data can reach p < 0.05: the smallest attainable p-value is %.2g",
+			r.N, smallestP(t, m, s, t.Alternative)))
+	case pc.method == stats.PExact:
+		w = append(w, fmt.Sprintf("n = %d is small: the p-value is exact, but the test has little power, so only a strong association can reach significance", r.N))
 	default:
 		w = append(w, fmt.Sprintf("n = %d is small: the test has little power, so only a strong association can reach significance", r.N))
 	}
 	if r.PValue < pFloor {
-		w = append(w, fmt.Sprintf("p is below %.0e, further out than the %s method resolves: the bound %.0e is written", pFloor, pc.method, pFloor))
+		w = append(w, fmt.Sprintf("p is below %.0e, the smallest p-value the record states: the bound %.0e is written", pFloor, pFloor))
 		r.PValue = pFloor
 	}
 	interval := !math.IsNaN(r.CILow) || !math.IsNaN(r.CIHigh)
@@ -278,23 +272,6 @@ func intervalGap(t *recipe.Test, m stats.Measure, r *Result) string {
 		return fmt.Sprintf("n = %d is too few for the %s interval (needs n ≥ %d)", r.N, r.CIMethod, need)
 	}
 	return fmt.Sprintf("the %s interval is undefined here: its standard error cannot be estimated from these data", r.CIMethod)
-}
-
-// exactFloor is the smallest p-value an exact permutation test of a rank
-// correlation can attain with n pairs: the observed order alone has
-// probability 1/n! under independence, and without ties its mirror image
-// attains the same |statistic|, so a two-sided p is at least 2/n! (the
-// permutation distribution of rank statistics; e.g. Hollander & Wolfe,
-// Nonparametric Statistical Methods, 1973, ch. 8).
-func exactFloor(n int, mirrored bool) float64 {
-	f := 1.0
-	for k := 2; k <= n; k++ {
-		f *= float64(k)
-	}
-	if mirrored {
-		return 2 / f
-	}
-	return 1 / f
 }
 
 // tieWarnings says what ties do to measure m on this sample. For

@@ -157,7 +157,17 @@ spearman (Bonett & Wright 2000), 0.437/(n-4) for kendall_b (Fieller, Hartley
 	for _, f := range slices.Compact(footnotes) {
 		fmt.Fprintln(stdout, f)
 	}
-	if len(ns) > 0 && slices.ContainsFunc(ns, func(n int) bool { return n < 10 && !unreachable(n) }) && m != stats.PearsonR {
+	small := false
+	for _, r := range rhos {
+		for _, n := range ns {
+			small = small || (n < 10 && !unreachable(n))
+		}
+		for _, p := range powers {
+			n := stats.CorrelationSampleSize(m, r, p, *alpha, a)
+			small = small || (n > 0 && n < 10)
+		}
+	}
+	if small && m != stats.PearsonR {
 		fmt.Fprintln(stdout, "note: below n = 10 the Fisher z approximation is rough for rank correlations; the exact test's power can be much lower")
 	}
 	return exitOK
