@@ -110,31 +110,71 @@ const (
 // (1988), Order Restricted Statistical Inference (Wiley, Chichester), ch. 2.
 func CheckMonotone(x, y []float64) MonotoneCheck {
 	mustMatch(x, y)
-	n := len(x)
-	res := MonotoneCheck{N: n, R2Monotone: math.NaN(), R2Free: math.NaN(), P: math.NaN()}
 	for i := range x {
 		if math.IsNaN(x[i]) || math.IsNaN(y[i]) {
 			panic(fmt.Sprintf("stats: CheckMonotone: NaN at index %d", i))
 		}
 	}
-	if n < monotoneMinN || isConstant(x) || isConstant(y) {
-		return res
+	mx := PrepareMonotone(x)
+	if !mx.usable || isConstant(y) {
+		return mx.notApplicable()
 	}
+	return mx.Check(Rank(y, TieAverage))
+}
 
-	// Pairs in order of x; ties keep their order of appearance.
+// MonotoneX is x prepared for CheckMonotone against many y columns (a
+// correlation matrix checks every pair): its order and its groups, found
+// once in O(n log n), so that each check costs O(n).
+type MonotoneX struct {
+	n      int
+	order  []int // positions in order of x; ties keep their order of appearance
+	bounds []int // group j is order[bounds[j]:bounds[j+1]]
+	usable bool  // n ≥ monotoneMinN, x not constant, at least 3 groups
+}
+
+// PrepareMonotone prepares x for MonotoneX.Check. x must not hold NaN.
+func PrepareMonotone(x []float64) *MonotoneX {
+	n := len(x)
+	mx := &MonotoneX{n: n}
+	if n < monotoneMinN || isConstant(x) {
+		return mx
+	}
 	p := make([]valueIndex, n)
 	for i, v := range x {
 		p[i] = valueIndex{v: v, i: i}
 	}
 	slices.SortFunc(p, compareValueIndex)
-	ry := Rank(y, TieAverage)
-	centre := float64(n+1) / 2 // the mean of midranks, exactly
+	mx.bounds = monotoneBins(p, min(monotoneMaxBins, max(monotoneMinBins, n/10)))
+	if len(mx.bounds)-1 < 3 {
+		return mx
+	}
+	mx.order = make([]int, n)
+	for i, q := range p {
+		mx.order[i] = q.i
+	}
+	mx.usable = true
+	return mx
+}
 
-	bounds := monotoneBins(p, min(monotoneMaxBins, max(monotoneMinBins, n/10)))
-	k := len(bounds) - 1
-	if k < 3 {
+func (mx *MonotoneX) notApplicable() MonotoneCheck {
+	return MonotoneCheck{N: mx.n, R2Monotone: math.NaN(), R2Free: math.NaN(), P: math.NaN()}
+}
+
+// Check is CheckMonotone(x, y) for the prepared x, given ry = Rank(y,
+// TieAverage), in O(n). It returns a check that is not Applicable when x
+// was not usable or y is constant.
+func (mx *MonotoneX) Check(ry []float64) MonotoneCheck {
+	if len(ry) != mx.n {
+		panic(fmt.Sprintf("stats: MonotoneX.Check: %d ranks for %d values", len(ry), mx.n))
+	}
+	res := mx.notApplicable()
+	n := mx.n
+	if !mx.usable || isConstant(ry) {
 		return res
 	}
+	bounds, order := mx.bounds, mx.order
+	k := len(bounds) - 1
+	centre := float64(n+1) / 2 // the mean of midranks, exactly
 
 	// Group sizes and means of the centred ranks, then the residual sum of
 	// squares about the group means in a second pass (no cancellation).
@@ -142,15 +182,15 @@ func CheckMonotone(x, y []float64) MonotoneCheck {
 	var tss, rssFree float64
 	for j := range k {
 		var s float64
-		for _, q := range p[bounds[j]:bounds[j+1]] {
-			d := ry[q.i] - centre
+		for _, i := range order[bounds[j]:bounds[j+1]] {
+			d := ry[i] - centre
 			s += d
 			tss += d * d
 		}
 		w[j] = float64(bounds[j+1] - bounds[j])
 		m[j] = s / w[j]
-		for _, q := range p[bounds[j]:bounds[j+1]] {
-			d := ry[q.i] - centre - m[j]
+		for _, i := range order[bounds[j]:bounds[j+1]] {
+			d := ry[i] - centre - m[j]
 			rssFree += d * d
 		}
 	}

@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"path/filepath"
+	"reflect"
 	"slices"
 	"testing"
 
@@ -658,5 +659,27 @@ func BenchmarkIsotonic(b *testing.B) {
 	x, _ := benchData(1_000_000)
 	for b.Loop() {
 		Isotonic(x, nil)
+	}
+}
+
+// TestPreparedMonotoneMatchesCheckMonotone: one prepared x checked against
+// many y gives exactly what CheckMonotone gives pair by pair.
+func TestPreparedMonotoneMatchesCheckMonotone(t *testing.T) {
+	r := rand.New(rand.NewPCG(31, 7))
+	x := make([]float64, 300)
+	for i := range x {
+		x[i] = math.Round(r.NormFloat64() * 3)
+	}
+	mx := PrepareMonotone(x)
+	for trial := 0; trial < 50; trial++ {
+		y := make([]float64, len(x))
+		for i := range y {
+			y[i] = math.Round(x[i]*x[i]*float64(trial%3) + r.NormFloat64()*4)
+		}
+		want := CheckMonotone(x, y)
+		got := mx.Check(Rank(y, TieAverage))
+		if !reflect.DeepEqual(got, want) && !(math.IsNaN(got.P) && math.IsNaN(want.P)) {
+			t.Fatalf("trial %d: prepared %+v, direct %+v", trial, got, want)
+		}
 	}
 }
