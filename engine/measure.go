@@ -45,11 +45,14 @@ type cellEnv struct {
 }
 
 // cellInput is one cell: where its results go in the tables and its data.
+// px and py are the shared columns the sample is a view of, or nil when the
+// sample is the pair's own copy.
 type cellInput struct {
-	test  *recipe.Test
-	pair  recipe.Pair
-	group string
-	s     sample
+	test   *recipe.Test
+	pair   recipe.Pair
+	group  string
+	s      sample
+	px, py *column
 }
 
 // measureSample computes every measure of the cell's test on its sample,
@@ -64,7 +67,10 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 	level := t.Interval.Level
 
 	shareX, shareY := math.NaN(), math.NaN()
-	if n > 0 {
+	switch {
+	case c.px != nil:
+		shareX, shareY = c.px.prepare(t.Ties.Rule).share, c.py.prepare(t.Ties.Rule).share
+	case n > 0:
 		shareX, shareY = stats.TieShare(s.x), stats.TieShare(s.y)
 	}
 	tied := shareX > 0 || shareY > 0
@@ -90,7 +96,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 		}
 	}
 	if defined {
-		base = append(base, monotoneNote(s)...)
+		base = append(base, monotoneNote(c)...)
 	}
 
 	results := make([]Result, len(t.Measures))
@@ -111,6 +117,9 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 			switch {
 			case m == stats.Spearman && k > 0:
 				r.Estimate = stats.PartialSpearman(s.x, s.y, s.z, t.Ties.Rule)
+			case m == stats.Spearman && c.px != nil:
+				// SpearmanRho on the columns' shared ranks.
+				r.Estimate = stats.Pearson(c.px.ranks, c.py.ranks)
 			case m == stats.Spearman:
 				r.Estimate = stats.SpearmanRho(s.x, s.y, t.Ties.Rule)
 			case m == stats.PearsonR && (hasInf(s.x) || hasInf(s.y) || anyInf(s.z)):
@@ -196,8 +205,13 @@ func commonNotes(s sample) []string {
 // monotoneNote warns when the relation between x and y is clearly not
 // monotone (a U or an inverted U), so that a coefficient near 0 is not read
 // as "no relation". The criterion is stats.CheckMonotone's.
-func monotoneNote(s sample) []string {
-	mc := stats.CheckMonotone(s.x, s.y)
+func monotoneNote(c cellInput) []string {
+	var mc stats.MonotoneCheck
+	if c.px != nil {
+		mc = c.px.prepare(c.test.Ties.Rule).mono.Check(c.py.prepare(c.test.Ties.Rule).mid)
+	} else {
+		mc = stats.CheckMonotone(c.s.x, c.s.y)
+	}
 	if !mc.Applicable || !mc.NonMonotone {
 		return nil
 	}

@@ -102,10 +102,9 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 
 	// Lay out the cells of work in recipe order, then fill them concurrently.
 	type cell struct {
-		in   cellInput
-		rows []int // the group's rows, nil for every row
-		note string
-		out  []Result
+		in  cellInput
+		src *cellSource
+		out []Result
 	}
 	var cells []*cell
 	groupsOf := map[*recipe.Pairing][]group{}
@@ -123,12 +122,15 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		return nil, &DiagnosticsError{Diags: diags, Data: true}
 	}
 	for _, t := range plan.Tests {
+		tbl := tables[t.Pairing.Dataset.Name]
+		groups := groupsOf[t.Pairing]
+		srcs := make([]*cellSource, len(groups))
+		for gi, g := range groups {
+			srcs[gi] = newCellSource(t, tbl, g)
+		}
 		for _, pair := range t.Pairing.Pairs {
-			for _, g := range groupsOf[t.Pairing] {
-				cells = append(cells, &cell{
-					in:   cellInput{test: t, pair: pair, group: g.name},
-					rows: g.rows, note: g.note,
-				})
+			for gi, g := range groups {
+				cells = append(cells, &cell{in: cellInput{test: t, pair: pair, group: g.name}, src: srcs[gi]})
 			}
 		}
 	}
@@ -143,11 +145,9 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 			if err := ectx.Err(); err != nil {
 				return err
 			}
-			t := c.in.test
-			c.in.s = pairUp(tables[t.Pairing.Dataset.Name], t, c.in.pair, c.rows)
-			c.in.s.groupNote = c.note
+			c.in.s, c.in.px, c.in.py = c.src.sample(c.in.pair)
 			out, err := measureSample(env, c.in)
-			c.in.s = sample{} // the cell's copy of the data is no longer needed
+			c.in.s, c.in.px, c.in.py = sample{}, nil, nil // the cell's data is no longer needed
 			c.out = out
 			prog.cellDone()
 			return err
