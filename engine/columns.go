@@ -3,6 +3,7 @@ package engine
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"sync"
 
@@ -31,7 +32,20 @@ type cellSource struct {
 	dropNote string
 
 	cols map[string]*column
+
+	// The correlation matrices of the shared columns, computed once when a
+	// pairing has enough pairs to make that cheaper than pair by pair.
+	matrixOnce sync.Once
+	matrixErr  error
+	index      map[string]int // shared column → row of the matrices
+	rhoMatrix  []float64      // Spearman: Pearson's r of the columns' ranks
+	rMatrix    []float64      // Pearson's r of the values, nil when any is infinite
 }
+
+// matrixMinPairs is the number of pairs from which a group's correlations
+// come from one correlation matrix (a blocked rank-k update) rather than
+// pair by pair; below it the matrix costs more than it saves.
+const matrixMinPairs = 16
 
 // column is one variable of a cellSource, over the source's shared rows
 // (the complete rows when listwise, the group's rows otherwise).
@@ -42,8 +56,29 @@ type column struct {
 	once  sync.Once
 	share float64          // stats.TieShare
 	ranks []float64        // under the test's tie rule
-	mid   []float64        // midranks (the same slice when the rule is average)
-	mono  *stats.MonotoneX // x prepared for the monotonicity check
+	mono  *stats.MonotoneX // the monotonicity subsample prepared as x
+	mid   []float64        // midranks of the monotonicity subsample (as y)
+}
+
+// monotoneRows is the most rows the monotonicity check reads: above it, an
+// evenly spaced subsample in file order. The check compares at most ten
+// group means, whose F test has ample power at this size to see a clear
+// bend, and the matrix of a 1000-column table then costs O(k·5000) per
+// column pair instead of O(k·n).
+const monotoneRows = 5000
+
+// monotoneSubsample returns every ⌈n/monotoneRows⌉-th value of v (v itself
+// when it is short enough).
+func monotoneSubsample(v []float64) []float64 {
+	if len(v) <= monotoneRows {
+		return v
+	}
+	stride := (len(v) + monotoneRows - 1) / monotoneRows
+	out := make([]float64, 0, monotoneRows)
+	for i := 0; i < len(v); i += stride {
+		out = append(out, v[i])
+	}
+	return out
 }
 
 // newCellSource gathers the columns of test t's pairing (and controls) for
@@ -146,6 +181,9 @@ func (src *cellSource) sample(pair recipe.Pair) (sample, *column, *column) {
 
 // prepare computes the column's shared statistics once; safe for
 // concurrent use by the cells that share the column.
+//
+// TODO: one radix pass for ranks and tie share (stats.RankTies) once it
+// lands.
 func (c *column) prepare(rule stats.TieRule) *column {
 	c.once.Do(func() {
 		if len(c.values) == 0 {
@@ -153,11 +191,83 @@ func (c *column) prepare(rule stats.TieRule) *column {
 			return
 		}
 		c.ranks, c.share = stats.Rank(c.values, rule), stats.TieShare(c.values)
-		c.mid = c.ranks
-		if rule != stats.TieAverage {
-			c.mid = stats.Rank(c.values, stats.TieAverage)
-		}
-		c.mono = stats.PrepareMonotone(c.values)
+		sub := monotoneSubsample(c.values)
+		c.mono = stats.PrepareMonotone(sub)
+		c.mid = stats.Rank(sub, stats.TieAverage)
 	})
 	return c
+}
+
+// matrixValue returns measure m (Spearman or Pearson, no controls) of pair
+// from the group's correlation matrix when the pairing is large enough to
+// have one and both columns are shared; ok is false otherwise. The matrix is
+// computed on first use, by whichever cell needs it first.
+func (src *cellSource) matrixValue(env cellEnv, m stats.Measure, pair recipe.Pair) (v float64, ok bool, err error) {
+	t := src.test
+	if len(t.Controls) > 0 || len(t.Pairing.Pairs) < matrixMinPairs || (m != stats.Spearman && m != stats.PearsonR) {
+		return 0, false, nil
+	}
+	src.matrixOnce.Do(func() { src.matrixErr = src.buildMatrices(env) })
+	if src.matrixErr != nil {
+		return 0, false, src.matrixErr
+	}
+	i, okX := src.index[pair.X]
+	j, okY := src.index[pair.Y]
+	if !okX || !okY {
+		return 0, false, nil
+	}
+	k := len(src.index)
+	switch {
+	case m == stats.Spearman && src.rhoMatrix != nil:
+		return src.rhoMatrix[i*k+j], true, nil
+	case m == stats.PearsonR && src.rMatrix != nil:
+		return src.rMatrix[i*k+j], true, nil
+	}
+	return 0, false, nil
+}
+
+// buildMatrices computes the correlation matrices of the shared columns for
+// the measures the test asks for.
+func (src *cellSource) buildMatrices(env cellEnv) error {
+	t := src.test
+	listwise := t.Pairing.Missing == recipe.Listwise
+	var names []string
+	for _, name := range pairingColumns(t.Pairing) {
+		if c := src.cols[name]; listwise || c.missing == 0 {
+			names = append(names, name)
+		}
+	}
+	if len(names) < 2 || len(src.cols[names[0]].values) < minPairs {
+		return nil
+	}
+	src.index = make(map[string]int, len(names))
+	for i, name := range names {
+		src.index[name] = i
+	}
+	if slices.Contains(t.Measures, stats.Spearman) {
+		ranks := make([][]float64, len(names))
+		for i, name := range names {
+			ranks[i] = src.cols[name].prepare(t.Ties.Rule).ranks
+		}
+		m, err := stats.CorrelationMatrix(env.ctx, ranks, env.workers)
+		if err != nil {
+			return err
+		}
+		src.rhoMatrix = m
+	}
+	if slices.Contains(t.Measures, stats.PearsonR) {
+		vals := make([][]float64, len(names))
+		for i, name := range names {
+			vals[i] = src.cols[name].values
+			if hasInf(vals[i]) {
+				return nil // Pearson's r is undefined there: pair by pair says why
+			}
+		}
+		m, err := stats.CorrelationMatrix(env.ctx, vals, env.workers)
+		if err != nil {
+			return err
+		}
+		src.rMatrix = m
+	}
+	return nil
 }

@@ -93,6 +93,11 @@ func Check(plan *recipe.Plan) hcl.Diagnostics {
 				unknown(name, t.ControlRanges[name], "control column")
 			}
 		}
+		if ds.Where != nil { // the row filter (engine/where.go)
+			for _, c := range ds.Where.Columns {
+				unknown(c.Name, c.Range, "column")
+			}
+		}
 		if len(diags) > before {
 			continue
 		}
@@ -200,8 +205,8 @@ func loadDatasets(ctx context.Context, plan *recipe.Plan) (map[string]*dataset.T
 }
 
 // datasetSpec lists the columns of ds that the plan's tests need: the
-// variables of each pairing (ordinal when the recipe gives levels) and the
-// grouping columns as labels.
+// variables of each pairing (ordinal when the recipe gives levels), the
+// grouping columns as labels, and the columns of the dataset's where.
 func datasetSpec(plan *recipe.Plan, ds *recipe.Dataset) (dataset.Spec, bool) {
 	f, _ := dataset.ParseFormat(string(ds.Format)) // checked by Check
 	spec := dataset.Spec{Path: ds.Path, Format: f, Missing: ds.Missing}
@@ -238,6 +243,10 @@ func datasetSpec(plan *recipe.Plan, ds *recipe.Dataset) (dataset.Spec, bool) {
 			add(dataset.ColumnSpec{Name: p.By, Kind: dataset.Label})
 		}
 	}
+	// The columns of the row filter, as it reads them (engine/where.go).
+	for _, c := range whereSpecs(ds) {
+		add(c)
+	}
 	return spec, used
 }
 
@@ -270,8 +279,9 @@ func cellDiagnostic(plan *recipe.Plan, ds *recipe.Dataset, ce *dataset.CellError
 }
 
 // columnRange is where the recipe names column of ds: the first pairing
-// that lists it, else the first test that controls for it, else the dataset
-// block (a whole-row problem has no column).
+// that lists it, else the first test that controls for it, else its first
+// place in the dataset's where, else the dataset block (a whole-row problem
+// has no column).
 func columnRange(plan *recipe.Plan, ds *recipe.Dataset, column string) hcl.Range {
 	for _, p := range plan.Pairings {
 		if p.Dataset == ds {
@@ -284,6 +294,13 @@ func columnRange(plan *recipe.Plan, ds *recipe.Dataset, column string) hcl.Range
 		if t.Pairing.Dataset == ds {
 			if r, ok := t.ControlRanges[column]; ok {
 				return r
+			}
+		}
+	}
+	if ds.Where != nil {
+		for _, c := range ds.Where.Columns {
+			if c.Name == column {
+				return c.Range
 			}
 		}
 	}

@@ -6,6 +6,7 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"sync"
 
 	"concordat/engine/stats"
 	"concordat/recipe"
@@ -53,6 +54,7 @@ type cellInput struct {
 	group  string
 	s      sample
 	px, py *column
+	src    *cellSource // the group's source when px and py are shared
 }
 
 // measureSample computes every measure of the cell's test on its sample,
@@ -69,7 +71,13 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 	shareX, shareY := math.NaN(), math.NaN()
 	switch {
 	case c.px != nil:
-		shareX, shareY = c.px.prepare(t.Ties.Rule).share, c.py.prepare(t.Ties.Rule).share
+		// Large columns are prepared side by side (a no-op when another
+		// cell has prepared them already).
+		var wg sync.WaitGroup
+		wg.Go(func() { c.px.prepare(t.Ties.Rule) })
+		c.py.prepare(t.Ties.Rule)
+		wg.Wait()
+		shareX, shareY = c.px.share, c.py.share
 	case n > 0:
 		shareX, shareY = stats.TieShare(s.x), stats.TieShare(s.y)
 	}
@@ -114,7 +122,16 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 		r.Warnings = slices.Clone(base)
 		if defined {
 			choices[i] = pMethodFor(t, m, s, tied)
+			fromMatrix := false
+			if c.px != nil && k == 0 {
+				v, ok, err := c.src.matrixValue(env, m, pair)
+				if err != nil {
+					return nil, err
+				}
+				r.Estimate, fromMatrix = v, ok
+			}
 			switch {
+			case fromMatrix:
 			case m == stats.Spearman && k > 0:
 				r.Estimate = stats.PartialSpearman(s.x, s.y, s.z, t.Ties.Rule)
 			case m == stats.Spearman && c.px != nil:
@@ -210,7 +227,7 @@ func monotoneNote(c cellInput) []string {
 	if c.px != nil {
 		mc = c.px.prepare(c.test.Ties.Rule).mono.Check(c.py.prepare(c.test.Ties.Rule).mid)
 	} else {
-		mc = stats.CheckMonotone(c.s.x, c.s.y)
+		mc = stats.CheckMonotone(monotoneSubsample(c.s.x), monotoneSubsample(c.s.y))
 	}
 	if !mc.Applicable || !mc.NonMonotone {
 		return nil

@@ -99,6 +99,11 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	if err != nil {
 		return nil, err
 	}
+	// Row filters run before any grouping or pairing (engine/where.go).
+	wheres, err := applyWheres(ctx, plan, tables, opts.jobs())
+	if err != nil {
+		return nil, err
+	}
 
 	// Lay out the cells of work in recipe order, then fill them concurrently.
 	type cell struct {
@@ -114,7 +119,7 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		if !ok {
 			continue // no test uses it
 		}
-		g, d := groupRows(tbl, p)
+		g, d := groupRows(tbl, p, wheres[p.Dataset.Name])
 		groupsOf[p] = g
 		diags = append(diags, d...)
 	}
@@ -146,8 +151,11 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 				return err
 			}
 			c.in.s, c.in.px, c.in.py = c.src.sample(c.in.pair)
+			if c.in.px != nil {
+				c.in.src = c.src
+			}
 			out, err := measureSample(env, c.in)
-			c.in.s, c.in.px, c.in.py = sample{}, nil, nil // the cell's data is no longer needed
+			c.in.s, c.in.px, c.in.py, c.in.src = sample{}, nil, nil, nil // the cell's data is no longer needed
 			c.out = out
 			prog.cellDone()
 			return err
@@ -203,19 +211,32 @@ type group struct {
 // in text order. Rows whose label is missing belong only to "all". A label
 // spelled "all" would be indistinguishable from the whole sample in every
 // table, so it is an error that points at the `by` attribute.
-func groupRows(t *dataset.Table, p *recipe.Pairing) ([]group, hcl.Diagnostics) {
-	out := []group{{name: "all"}}
+//
+// Only the rows that the dataset's where keeps (w; nil without a filter)
+// take part, and every group says how many the filter excluded.
+func groupRows(t *dataset.Table, p *recipe.Pairing, w *whereOutcome) ([]group, hcl.Diagnostics) {
+	kept := w.rows() // nil: every row
+	out := []group{{name: "all", rows: kept, note: w.note()}}
 	if p.By == "" {
 		return out, nil
 	}
 	col := labelColumn(t, p.By)
 	idx := map[string][]int{}
 	unlabelled := 0
-	for i, l := range col.Labels {
+	n := len(col.Labels)
+	if kept != nil {
+		n = len(kept)
+	}
+	for k := 0; k < n; k++ {
+		i := k
+		if kept != nil {
+			i = kept[k]
+		}
 		if col.Missing != nil && col.Missing[i] {
 			unlabelled++
 			continue
 		}
+		l := col.Labels[i]
 		idx[l] = append(idx[l], i)
 	}
 	if rows, ok := idx["all"]; ok {
@@ -228,7 +249,7 @@ func groupRows(t *dataset.Table, p *recipe.Pairing) ([]group, hcl.Diagnostics) {
 		}}
 	}
 	if unlabelled > 0 {
-		out[0].note = fmt.Sprintf("%s no %s value: counted in \"all\" only", plural(unlabelled, "row has", "rows have"), p.By)
+		out[0].note = joinNotes(out[0].note, fmt.Sprintf("%s no %s value: counted in \"all\" only", plural(unlabelled, "row has", "rows have"), p.By))
 	}
 	names := make([]string, 0, len(idx))
 	for k := range idx {
@@ -236,7 +257,7 @@ func groupRows(t *dataset.Table, p *recipe.Pairing) ([]group, hcl.Diagnostics) {
 	}
 	sortLabels(names)
 	for _, k := range names {
-		out = append(out, group{name: k, rows: idx[k]})
+		out = append(out, group{name: k, rows: idx[k], note: w.note()})
 	}
 	return out, nil
 }

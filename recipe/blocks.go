@@ -10,6 +10,7 @@ import (
 	"github.com/hashicorp/hcl/v2"
 	"github.com/hashicorp/hcl/v2/hclsyntax"
 
+	"concordat/engine/filter"
 	"concordat/engine/stats"
 )
 
@@ -21,9 +22,10 @@ var (
 	}
 	datasetSpec = spec{
 		where:    "in a dataset block",
-		attrs:    []string{"path", "format", "sha256", "missing"},
+		attrs:    []string{"path", "format", "sha256", "missing", "where"},
 		blocks:   []string{"column"},
 		required: []string{"path"},
+		exprs:    []string{"where"},
 	}
 	columnSpec = spec{
 		where:    "in a column block",
@@ -171,6 +173,13 @@ func (d *decoder) decodeDataset(b *hclsyntax.Block) *Dataset {
 		col := d.decodeColumn(cb, ds)
 		ds.Columns = append(ds.Columns, col)
 		ds.Levels[name] = col.Levels
+	}
+
+	// The filter is read last: a column with levels is compared by them.
+	if a := c.exprs["where"]; a != nil {
+		var diags hcl.Diagnostics
+		ds.Where, diags = filter.Analyze(a.Expr, d.src, filter.Env{Levels: ds.Levels, Suggest: Suggest})
+		d.diags = append(d.diags, diags...)
 	}
 	return ds
 }

@@ -22,6 +22,7 @@ type decoder struct {
 	dir        string // recipe folder
 	recipePath string
 	ledgerPath string
+	src        []byte // the recipe's text, for the source of a where expression
 	diags      hcl.Diagnostics
 }
 
@@ -52,6 +53,9 @@ type spec struct {
 	attrs    []string // in the order they are listed to the user
 	blocks   []string
 	required []string
+	// exprs are the arguments among attrs that are kept as expressions
+	// instead of being evaluated: where, whose bare names are columns.
+	exprs []string
 }
 
 // labelCount says how many labels (names) each block type takes.
@@ -69,17 +73,18 @@ type attr struct {
 
 // content is a body split by its spec.
 type content struct {
-	attrs  map[string]*attr   // null-valued arguments count as absent
-	blocks []*hclsyntax.Block // known types with the right number of labels, in order
-	header hcl.Range          // the enclosing block's header, for "missing" problems
-	whole  *hcl.Range         // the enclosing block, as context
+	attrs  map[string]*attr                // null-valued arguments count as absent
+	exprs  map[string]*hclsyntax.Attribute // spec.exprs that are present (a literal null is absent)
+	blocks []*hclsyntax.Block              // known types with the right number of labels, in order
+	header hcl.Range                       // the enclosing block's header, for "missing" problems
+	whole  *hcl.Range                      // the enclosing block, as context
 }
 
 // content checks body against s, reporting unknown arguments and blocks,
 // malformed block headers and missing required arguments. header is the
 // range to blame for a missing argument: the enclosing block's type and name.
 func (d *decoder) content(body *hclsyntax.Body, s spec, header hcl.Range) content {
-	c := content{attrs: map[string]*attr{}}
+	c := content{attrs: map[string]*attr{}, exprs: map[string]*hclsyntax.Attribute{}}
 
 	names := make([]string, 0, len(body.Attributes))
 	for name := range body.Attributes {
@@ -92,6 +97,12 @@ func (d *decoder) content(body *hclsyntax.Body, s spec, header hcl.Range) conten
 		a := body.Attributes[name]
 		if !slices.Contains(s.attrs, name) {
 			d.unknownAttr(a, s)
+			continue
+		}
+		if slices.Contains(s.exprs, name) {
+			if l, ok := a.Expr.(*hclsyntax.LiteralValueExpr); !ok || !l.Val.IsNull() {
+				c.exprs[name] = a
+			}
 			continue
 		}
 		v := d.evaluate(a)
@@ -113,7 +124,7 @@ func (d *decoder) content(body *hclsyntax.Body, s spec, header hcl.Range) conten
 	}
 
 	for _, name := range s.required {
-		if _, ok := c.attrs[name]; !ok {
+		if _, ok := c.attrs[name]; !ok && c.exprs[name] == nil {
 			d.errorf(header, nil, "Missing required argument",
 				"The argument %q is required %s.", name, s.where)
 		}
@@ -188,6 +199,8 @@ func (d *decoder) checkLabels(b *hclsyntax.Block) bool {
 
 // evaluate computes an argument's constant value. Recipes have no variables
 // and no functions; a bare name is most likely a word that lost its quotes.
+// (The one argument whose bare names are columns, a dataset's where, is not
+// evaluated here: see spec.exprs and engine/filter.)
 func (d *decoder) evaluate(a *hclsyntax.Attribute) *attr {
 	if t, ok := a.Expr.(*hclsyntax.ScopeTraversalExpr); ok && len(t.Traversal) == 1 {
 		name := t.Traversal.RootName()

@@ -34,6 +34,9 @@ func (p *Plan) Describe(w io.Writer) error {
 			b.WriteString("sha256 = " + quote(ds.SHA256) + "\n")
 		}
 		b.WriteString("missing = " + hclList(ds.Missing) + "\n")
+		if ds.Where != nil {
+			b.WriteString("where = " + ds.Where.Text + "\n")
+		}
 		if ds.SHA256 == "" {
 			b.WriteString("# sha256: not pinned\n")
 		}
@@ -161,6 +164,9 @@ func (p *Plan) Settings() any {
 			Name: ds.Name, Path: ds.PathAsWritten, Format: string(ds.Format),
 			SHA256: ds.SHA256, Missing: nonNil(ds.Missing), Columns: []columnSettings{},
 		}
+		if ds.Where != nil {
+			d.Where = ds.Where.Text
+		}
 		for _, c := range ds.Columns {
 			d.Columns = append(d.Columns, columnSettings{Name: c.Name, Levels: nonNil(c.Levels)})
 		}
@@ -233,6 +239,9 @@ type datasetSettings struct {
 	SHA256  string           `json:"sha256"`
 	Missing []string         `json:"missing"`
 	Columns []columnSettings `json:"columns"`
+	// Where is the row filter's text; left out when there is none, so
+	// that the settings of a recipe without one are as they always were.
+	Where string `json:"where,omitempty"`
 }
 
 type columnSettings struct {

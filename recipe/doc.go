@@ -13,5 +13,10 @@
 // The package never opens a data file: whether a column exists, or whether
 // a level list covers the data, is for the engine to check against the
 // ranges that the Plan keeps for that purpose (Pairing.ColumnRanges,
-// ColumnDecl.LevelsRange).
+// ColumnDecl.LevelsRange, Dataset.Where's Columns).
+//
+// A dataset's where is the one argument whose bare names are not mistakes
+// but column names: it is kept as an expression and checked by
+// engine/filter (its operators, and the type each column is read as),
+// while every other argument is a constant.
 package recipe

@@ -88,7 +88,7 @@ func ParseFiles(src []byte, filename string) (*Plan, map[string]*hcl.File, hcl.D
 
 	dir := filepath.Dir(filename)
 	name := strings.TrimSuffix(filepath.Base(filename), ".hcl")
-	d := &decoder{dir: dir, recipePath: filename, ledgerPath: ledger.PathFor(filename)}
+	d := &decoder{dir: dir, recipePath: filename, ledgerPath: ledger.PathFor(filename), src: src}
 	plan := d.decodeRecipe(body)
 	diags = append(diags, d.diags...)
 	sortDiagnostics(diags)

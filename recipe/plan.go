@@ -5,6 +5,7 @@ import (
 
 	"github.com/hashicorp/hcl/v2"
 
+	"concordat/engine/filter"
 	"concordat/engine/ledger"
 	"concordat/engine/stats"
 )
@@ -54,6 +55,12 @@ type Dataset struct {
 	// Levels maps an ordinal text column to its labels, low to high.
 	Levels  map[string][]string
 	Columns []*ColumnDecl // the column blocks, in recipe order
+
+	// Where is the row filter (`where = age >= 18 && site != "B"`),
+	// checked and typed: its text, its range, and the columns it reads
+	// with their kinds and where it names them (for the engine to check
+	// against the data's header). Nil when the dataset has no where.
+	Where *filter.Expr
 
 	DeclRange   hcl.Range
 	PathRange   hcl.Range // where the path was written, for "cannot read" diagnostics

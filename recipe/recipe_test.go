@@ -12,6 +12,7 @@ import (
 
 	"github.com/hashicorp/hcl/v2"
 
+	"concordat/engine/filter"
 	"concordat/engine/stats"
 )
 
@@ -249,7 +250,7 @@ pairing "p" {
 		{"unknown argument without suggestion", `dataset "d" {
   path = "d.csv"
   compression = "gzip"
-}`, []wantDiag{{3, 3, "Unsupported argument", `not expected in a dataset block. Known arguments: "path", "format", "sha256", "missing".`}}},
+}`, []wantDiag{{3, 3, "Unsupported argument", `not expected in a dataset block. Known arguments: "path", "format", "sha256", "missing", "where".`}}},
 		{"block written as argument", head + `test "t" {
   pairing = "p"
   interval = { level = 0.9 }
@@ -541,6 +542,34 @@ table "e" {
 			{27, 11, "Table would overwrite the ledger", ""},
 			{32, 11, "Table would overwrite the ledger's lock", "two runs"},
 		}},
+		{"where", `dataset "d" {
+  path  = "d.csv"
+  where = upper(site) == "B" || age >= 18 && age == "x" || grade > 2 || site < "C"
+  column "grade" {
+    levels = ["cull", "standard", "fancy"]
+  }
+}
+dataset "e" {
+  path  = "e.csv"
+  where = weight
+}
+dataset "f" {
+  path  = "f.csv"
+  where = var.x > 1 || grade == "fancyy"
+  column "grade" {
+    levels = ["cull", "standard", "fancy"]
+  }
+}
+title = age`, []wantDiag{
+			{3, 11, "Function calls not allowed", "functions such as upper(…) are not available"},
+			{3, 53, "Mismatched types in where", `age == "x" compares column "age" (numbers, as age >= 18 at recipe.hcl:3:33 says) with text`},
+			{3, 60, "Mismatched types in where", `Column "grade" has levels, so it is compared with its labels, such as grade >= "standard", not with numbers.`},
+			{3, 73, "Text cannot be ordered", `To order the labels of "site", declare them in a column block`},
+			{10, 11, "Column is not a condition", `Column "weight" is not true or false by itself`},
+			{14, 11, "Not a column name", `var.x has an attribute after the name "var"`},
+			{14, 33, "Unknown level", `"fancyy" is not a level of column "grade". Did you mean "fancy"? Its levels, low to high: "cull", "standard", "fancy".`},
+			{19, 9, "Unquoted name", `title = "age"`},
+		}},
 		{"variables and functions", `title = upper("x")
 seed = var.seed`, []wantDiag{
 			{1, 9, "Function calls not allowed", ""},
@@ -759,5 +788,64 @@ test "partial" {
 	}
 	if p.Interval.Method != IntervalFisher || p.Interval.Resamples != defaultResamples {
 		t.Errorf("default interval = %+v", p.Interval)
+	}
+}
+
+// TestWhere checks that a dataset's where reaches the plan typed, with its
+// text and the places it names each column, and that an absent or null
+// where is nil.
+func TestWhere(t *testing.T) {
+	src := `dataset "d" {
+  path  = "d.csv"
+  where = (age >= 18 # adults
+           && site != "B") || grade >= "fancy"
+  column "grade" {
+    levels = ["cull", "standard", "fancy"]
+  }
+}
+dataset "e" {
+  path  = "e.csv"
+  where = null
+}
+dataset "f" {
+  path = "f.csv"
+}`
+	plan, diags := Parse([]byte(src), "w.hcl")
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	w := plan.Datasets[0].Where
+	if w == nil {
+		t.Fatal("no Where")
+	}
+	if w.Text != `(age >= 18 && site != "B") || grade >= "fancy"` {
+		t.Errorf("Text = %q", w.Text)
+	}
+	if w.Range.Start.Line != 3 || w.Range.Start.Column != 11 || w.Range.End.Line != 4 {
+		t.Errorf("Range = %v", w.Range)
+	}
+	want := []struct {
+		name      string
+		kind      filter.Kind
+		line, col int
+	}{{"age", filter.Number, 3, 12}, {"site", filter.Text, 4, 15}, {"grade", filter.Ordinal, 4, 31}}
+	if len(w.Columns) != len(want) {
+		t.Fatalf("Columns = %+v", w.Columns)
+	}
+	for i, c := range w.Columns {
+		if c.Name != want[i].name || c.Kind != want[i].kind || c.Range.Start.Line != want[i].line || c.Range.Start.Column != want[i].col {
+			t.Errorf("column %d = %s %v at %v, want %+v", i, c.Name, c.Kind, c.Range, want[i])
+		}
+	}
+	if !reflect.DeepEqual(w.Columns[2].Levels, []string{"cull", "standard", "fancy"}) {
+		t.Errorf("grade levels = %q", w.Columns[2].Levels)
+	}
+	if plan.Datasets[1].Where != nil || plan.Datasets[2].Where != nil {
+		t.Errorf("a null or absent where is not nil: %v, %v", plan.Datasets[1].Where, plan.Datasets[2].Where)
+	}
+	settings, _ := json.Marshal(plan.Settings())
+	if !strings.Contains(string(settings), `"where":"(age \u003e= 18 \u0026\u0026 site != \"B\") || grade \u003e= \"fancy\""`) ||
+		strings.Count(string(settings), `"where"`) != 1 {
+		t.Errorf("settings = %s", settings)
 	}
 }

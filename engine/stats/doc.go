@@ -12,6 +12,11 @@
 //
 //   - Rank and TieShare: ranking under a TieRule, in O(n log n).
 //   - Pearson, SpearmanRho: product-moment r, and ρ as r on ranks.
+//   - CorrelationMatrix, SpearmanMatrix: the k×k matrix of r or ρ among k
+//     columns (each ranked once for ρ), as the Gram matrix of the centred
+//     unit-length columns, blocked for the cache and tiled over workers
+//     with gonum's Dgemv inside; each element agrees with the pairwise
+//     kernel to rounding and does not depend on the worker count.
 //   - CountPairs: one O(n log n) pass (Knight 1966) that classifies every
 //     pair as concordant, discordant or tied and keeps the tie-group sums;
 //     its methods give τ_a, τ_b, Stuart's τ_c, Goodman and Kruskal's γ,

@@ -5,6 +5,8 @@ dataset "survey" {
   path    = "data/school_survey.txt"
   format  = "tsv"
   missing = []
+  where   = year >= "8" && (reading_score > 0 || # a score of 0 means absent
+                           homework_hours <= 2)
 
   column "confidence" {
     levels = ["very low", "low", "medium", "high", "very high"]
