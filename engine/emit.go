@@ -190,7 +190,7 @@ func commonLevel(rows []Result) (float64, bool) {
 // covers the test's resolved settings and the hashes of the data it read;
 // the result hash is the sha256 of the test's results in the JSON table
 // encoding, which is canonical (fixed key order, shortest round-trip numbers).
-func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, results []Result) (ledger.Step, error) {
+func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, where *whereOutcome, results []Result) (ledger.Step, error) {
 	var data []ledger.Input
 	for _, in := range inputs {
 		if in.Name == t.Pairing.Dataset.Name {
@@ -200,7 +200,7 @@ func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, result
 	inHash, err := ledger.Hash(struct {
 		Test     any            `json:"test"`
 		Datasets []ledger.Input `json:"datasets"`
-	}{testSettings(t, plan.Seed), data})
+	}{testSettings(t, plan.Seed, where), data})
 	if err != nil {
 		return ledger.Step{}, fmt.Errorf("hash inputs of test %q: %w", t.Name, err)
 	}
@@ -308,7 +308,7 @@ func version(o Options) string {
 // testSettings is the resolved description of a test that its step hash
 // covers: everything that can change its numbers, including how each of its
 // columns is read (kind, levels in order) and which tokens mean missing.
-func testSettings(t *recipe.Test, seed int64) any {
+func testSettings(t *recipe.Test, seed int64, where *whereOutcome) any {
 	p := t.Pairing
 	measures := make([]string, len(t.Measures))
 	for i, m := range t.Measures {
@@ -351,8 +351,9 @@ func testSettings(t *recipe.Test, seed int64) any {
 		Interval     string        `json:"interval_method"`
 		Resamples    int           `json:"resamples"`
 		Adjust       string        `json:"adjust"`
+		Where        *whereOutcome `json:"where,omitempty"`
 	}{t.Name, p.Dataset.Name, columns, p.Dataset.Missing, p.Pairs, p.Missing.String(), p.By,
 		nonNilStrings(t.Controls), t.Ties.Rule.String(), t.Ties.MaxShare, measures, t.Alternative.String(),
 		t.PValue.String(), t.Permutations, seed, t.Interval.Level, t.Interval.Method.String(),
-		t.Interval.Resamples, t.Adjust.String()}
+		t.Interval.Resamples, t.Adjust.String(), where}
 }
