@@ -128,7 +128,9 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 				if err != nil {
 					return nil, err
 				}
-				r.Estimate, fromMatrix = v, ok
+				if ok {
+					r.Estimate, fromMatrix = v, true
+				}
 			}
 			switch {
 			case fromMatrix:

@@ -179,7 +179,7 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	}
 	comp := &Computation{inputs: inputs, Results: results}
 	for _, t := range plan.Tests {
-		step, err := stepRecord(plan, t, inputs, byTest[t.Name])
+		step, err := stepRecord(plan, t, inputs, wheres[t.Pairing.Dataset.Name], byTest[t.Name])
 		if err != nil {
 			return nil, err
 		}
