@@ -69,8 +69,8 @@ func ExamplePermutationTest() {
 	}
 	fmt.Printf("spearman p = %.4f\nkendall_b p = %.4f\n", res.P[0], res.P[1])
 	// Output:
-	// spearman p = 0.0369
-	// kendall_b p = 0.0357
+	// spearman p = 0.0386
+	// kendall_b p = 0.0363
 }
 
 func ExampleBootstrapInterval() {

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/big"
 	"math/bits"
 	"slices"
 )
@@ -20,9 +21,10 @@ import (
 // arrangements in the same order and is cheaper to compute:
 //
 //   - Spearman: x and y are ranked once under the rule, and the statistic is
-//     T = Σ a_i b_π(i) with a and b the centred ranks; ρ = T / √(Σa²Σb²),
-//     whose denominator is the same for every arrangement.
-//   - PearsonR: the same on the centred raw values.
+//     T = Σ a_i b_π(i) with a and b twice the ranks (integers under every
+//     tie rule); ρ = (T − C) / √(Σ(a−ā)²Σ(b−b̄)²) with C = ΣaΣb/n, and C and
+//     the denominator are the same for every arrangement.
+//   - PearsonR: T = Σ a_i b_π(i) on the centred raw values (C = 0).
 //   - KendallA, KendallB, KendallC, SomersDYX, SomersDXY: each is S = n_c − n_d
 //     times a positive factor fixed by the tie structures of x and y, which
 //     an arrangement does not change, so the test counts on the integer S and
@@ -31,18 +33,20 @@ import (
 //     arrangement; it is compared as an exact fraction (128-bit products).
 //
 // The p-value counts the arrangements at least as extreme as the observed
-// one: Greater P(T ≥ t), Less P(T ≤ t), TwoSided P(|T| ≥ |t|), T centred so
-// that 0 means no association (the conditional means of S and of the centred
-// dot products are 0). This two-sided p-value is not twice the smaller one-sided
-// p-value: when ties make the conditional distribution asymmetric the two
-// differ, and P(|T| ≥ |t|) is the one that keeps its meaning.
+// one: Greater P(T ≥ t), Less P(T ≤ t), TwoSided P(|T − C| ≥ |t − C|), C
+// the conditional mean of T, so that T − C = 0 means no association (C is
+// 0 for S and for the centred dot products). This two-sided p-value is not
+// twice the smaller one-sided p-value: when ties make the conditional
+// distribution asymmetric the two differ, and P(|T − C| ≥ |t − C|) is the
+// one that keeps its meaning.
 //
-// The two float statistics (Spearman, PearsonR) are compared with a
-// tolerance of permRelTol·√(Σa²Σb²), that is 10⁻⁹ on the scale of ρ or r:
-// arrangements that give the observed correlation up to rounding count as at
-// least as extreme. (Beyond n ≈ 2000 untied ranks, attainable values of ρ
-// closer than 10⁻⁹ also count as equal; their probability is negligible.)
-// S and γ are compared exactly.
+// Spearman's T is an integer below 2⁵⁹ for n ≤ 2¹⁹ and is compared exactly
+// (in int64; the two-sided bounds are found once with math/big), so ties of
+// ρ with the observed value always count. PearsonR, and Spearman beyond
+// n = 2¹⁹ on centred ranks, are compared with a tolerance of
+// permRelTol·√(Σa²Σb²), that is 10⁻⁹ on the scale of r or ρ: arrangements
+// that give the observed correlation up to rounding count as at least as
+// extreme. S and γ are compared exactly.
 //
 // Reference: E. J. G. Pitman (1937), Significance tests which may be applied
 // to samples from any populations. II. The correlation coefficient test,
@@ -148,10 +152,14 @@ func multisetOrders(sizes []int) float64 {
 // PermutationTest returns Monte Carlo p-values of the conditional
 // permutation test of association between x and y (see above) for each of
 // spec.Measures. It draws spec.Draws uniform random permutations of y
-// against x (Fisher–Yates) from the stream spec.Key, in blocks of 1024
-// draws, block b drawing from spec.Key.Block(b); the p-values depend on the
-// key only, not on spec.Workers. With b of the m draws at least as extreme
-// as the data,
+// against x from the stream spec.Key, in blocks of 1024 draws, block b
+// drawing from spec.Key.Block(b); the p-values depend on the key only, not
+// on spec.Workers. Each draw is a Fisher–Yates shuffle whose swap partners
+// are drawn several to a 64-bit word (see swapIndices): y's scores (ranks,
+// values, Kendall slots) are shuffled in place, continuing from the
+// previous draw of the block, and each statistic is computed from them in
+// one sequential pass, without allocating. With b of the m draws at least as
+// extreme as the data,
 //
 //	p = (b + 1) / (m + 1),
 //
@@ -194,10 +202,9 @@ func PermutationTest(ctx context.Context, x, y []float64, spec PermutationSpec) 
 		}
 		pw := ws[w]
 		pw.rng.reset(spec.Key, uint64(b))
-		copy(pw.c, s.init)
+		s.startBlock(pw)
 		for range size(b) {
-			pw.rng.shuffle(pw.c)
-			s.eval(pw.c, pw)
+			s.draw(pw)
 		}
 	})
 	if err != nil {
@@ -253,7 +260,7 @@ func ExactPermutationTest(ctx context.Context, x, y []float64, spec PermutationS
 		tasks[b].fill(pw.c, pw.left)
 		suffix := pw.c[len(tasks[b].prefix):]
 		for {
-			s.eval(pw.c, pw)
+			s.evalCodes(pw.c, pw)
 			pw.enumerated++
 			if !nextArrangement(suffix) {
 				break
@@ -281,7 +288,8 @@ type permColumn struct {
 	count  []int     // multiplicity of each code
 	kc     []int32   // Kendall code of each code: the dense rank of its value, from 0
 	groups []int     // sizes of the groups of equal values
-	sp     []float64 // centred rank of each code (Spearman)
+	r2     []int32   // twice the rank of each code (Spearman; an integer under every rule)
+	sp     []float64 // centred rank of each code (Spearman beyond spIntMaxN)
 	pe     []float64 // centred value of each code (PearsonR)
 	spOK   bool      // the ranks are not constant
 	peOK   bool      // the values are finite and not constant
@@ -320,6 +328,12 @@ func newPermColumn(v []float64, rule TieRule, fine, needSp, needPe bool) permCol
 		r := Rank(v, rule)
 		c.spOK = n >= 2 && !isConstant(r)
 		c.sp, c.sumSp2 = centredTable(r, c.codes, len(c.count))
+		if n <= spIntMaxN {
+			c.r2 = make([]int32, len(c.count))
+			for i, code := range c.codes {
+				c.r2[code] = int32(2 * r[i]) // ranks are multiples of ½, at most n
+			}
+		}
 	}
 	if needPe && n > 0 {
 		c.peOK = n >= 2 && !isConstant(v)
@@ -349,28 +363,109 @@ func centredTable(v []float64, codes []int32, k int) ([]float64, float64) {
 	return t, ss
 }
 
+// spIntMaxN is the largest n for which Spearman's statistic is computed
+// exactly in int64 (see intDot); beyond it the centred ranks are compared
+// as floats with the tolerance permRelTol. A variable so that the tests can
+// reach the float path at small n.
+var spIntMaxN = 1 << 19
+
+// intDot is a statistic T = Σ a_j b_j over positions j, a the fixed
+// column's and b the permuted column's integer scores, computed exactly.
+// Spearman uses twice the ranks (integers under every tie rule): T is then
+// 4 Σ r s, and ρ is an increasing function of T − C, C = ΣaΣb/n being the
+// conditional mean of T, the same for every arrangement. With n ≤ spIntMaxN
+// = 2¹⁹ every score is at most 2²⁰ and T < 2⁵⁹, so T and the thresholds
+// fit in int64 whatever the order of summation.
+type intDot struct {
+	fixed []int32 // a, by position
+	table []int32 // b, by code of the permuted column (enumeration)
+	init  []int32 // b, by position, in the observed arrangement
+	t0    int64   // observed T
+	// Two-sided thresholds: |nT − ΣaΣb| ≥ |nT₀ − ΣaΣb| exactly when T ≥ hi
+	// or T ≤ lo.
+	hi, lo int64
+}
+
+func newIntDot(fixed, table, init []int32) intDot {
+	d := intDot{fixed: fixed, table: table, init: init, t0: dotInt(fixed, init)}
+	var sa, sb int64
+	for j := range fixed {
+		sa += int64(fixed[j])
+		sb += int64(init[j])
+	}
+	n := big.NewInt(int64(len(fixed)))
+	c := new(big.Int).Mul(big.NewInt(sa), big.NewInt(sb)) // n·C
+	dev := new(big.Int).Mul(n, big.NewInt(d.t0))
+	dev.Sub(dev, c).Abs(dev)                            // |nT₀ − nC|
+	hi := new(big.Int).Add(c, dev)                      // T ≥ (nC + dev)/n, rounded up
+	hi.Neg(hi).Div(hi, n).Neg(hi)                       // ⌈x/n⌉ = −⌊−x/n⌋ (Div floors for n > 0)
+	lo := new(big.Int).Div(new(big.Int).Sub(c, dev), n) // T ≤ ⌊(nC − dev)/n⌋
+	if !hi.IsInt64() || !lo.IsInt64() {
+		panic("stats: permutation test: Spearman thresholds overflow int64")
+	}
+	d.hi, d.lo = hi.Int64(), lo.Int64()
+	return d
+}
+
+func (d *intDot) extreme(t int64, alt Alternative) bool {
+	switch alt {
+	case Greater:
+		return t >= d.t0
+	case Less:
+		return t <= d.t0
+	}
+	return t >= d.hi || t <= d.lo
+}
+
+// floatDot is a statistic T = Σ a_j b_j over positions j on centred
+// values, compared with the tolerance tol = permRelTol·√(Σa²Σb²) (PearsonR,
+// and Spearman beyond spIntMaxN).
+type floatDot struct {
+	fixed []float64 // a, by position
+	table []float64 // b, by code of the permuted column (enumeration)
+	init  []float64 // b, by position, in the observed arrangement
+	t0    float64
+	tol   float64
+}
+
+func newFloatDot(fixed, table, init []float64, sumA2, sumB2 float64) floatDot {
+	return floatDot{fixed: fixed, table: table, init: init, t0: dotFloat(fixed, init),
+		tol: permRelTol * math.Sqrt(sumA2) * math.Sqrt(sumB2)}
+}
+
+func (d *floatDot) extreme(t float64, alt Alternative) bool {
+	switch alt {
+	case Greater:
+		return t >= d.t0-d.tol
+	case Less:
+		return t <= d.t0+d.tol
+	}
+	return math.Abs(t) >= math.Abs(d.t0)-d.tol
+}
+
 // permSetup holds everything an arrangement does not change. The fixed
 // column's observations are sorted by value (its tie groups end at
-// groupEnd); the permuted column is a sequence of codes aligned with them,
-// init being the observed arrangement.
+// groupEnd); the permuted column is a sequence aligned with them: codes
+// (init, the observed arrangement) when enumerating, and for the Monte
+// Carlo draws the scores themselves, which the shuffle moves directly so
+// that each statistic then reads them in order.
 type permSetup struct {
 	measures []Measure
 	defined  []bool
 	alt      Alternative
 
-	fixedSp, fixedPe []float64 // fixed column, per position
-	groupEnd         []int32   // ends of the fixed column's tie groups
-	permSp, permPe   []float64 // permuted column, per code
-	permKc           []int32
-	permDistinct     int     // distinct values of the permuted column
-	permCount        []int   // multiplicity of each code of the permuted column
-	init             []int32 // the observed arrangement
-	orders           float64 // distinct arrangements of the permuted column
+	groupEnd  []int32 // ends of the fixed column's tie groups
+	permCount []int   // multiplicity of each code of the permuted column
+	init      []int32 // the observed arrangement of codes
+	orders    float64 // distinct arrangements of the permuted column
 
-	doSp, doPe, doS, doG bool
-	sp0, spTol           float64
-	pe0, peTol           float64
-	s0, d0               int64 // observed S and n_c + n_d
+	sp   intDot   // Spearman, n ≤ spIntMaxN
+	spF  floatDot // Spearman, n > spIntMaxN
+	pe   floatDot // PearsonR
+	kend pairSetup
+
+	doSp, doSpF, doPe, doS, doG bool
+	s0, d0                      int64 // observed S and n_c + n_d
 }
 
 func newPermSetup(x, y []float64, spec PermutationSpec, enumerate bool) *permSetup {
@@ -425,7 +520,8 @@ func newPermSetup(x, y []float64, spec PermutationSpec, enumerate bool) *permSet
 		switch {
 		case !ok:
 		case m == Spearman:
-			s.doSp = true
+			s.doSp = n <= spIntMaxN
+			s.doSpF = !s.doSp
 		case m == PearsonR:
 			s.doPe = true
 		case m == Gamma:
@@ -465,24 +561,24 @@ func newPermSetup(x, y []float64, spec PermutationSpec, enumerate bool) *permSet
 	for j, i := range order {
 		s.init[j] = perm.codes[i]
 	}
+	s.permCount = perm.count
 	if s.doSp {
-		s.fixedSp = gather(fixed.sp, fixed.codes, order)
-		s.permSp = perm.sp
-		s.sp0 = dotCodes(s.fixedSp, s.permSp, s.init)
-		s.spTol = permRelTol * math.Sqrt(fixed.sumSp2) * math.Sqrt(perm.sumSp2)
+		s.sp = newIntDot(gather(fixed.r2, fixed.codes, order), perm.r2, gather(perm.r2, perm.codes, order))
+	}
+	if s.doSpF {
+		s.spF = newFloatDot(gather(fixed.sp, fixed.codes, order), perm.sp, gather(perm.sp, perm.codes, order),
+			fixed.sumSp2, perm.sumSp2)
 	}
 	if s.doPe {
-		s.fixedPe = gather(fixed.pe, fixed.codes, order)
-		s.permPe = perm.pe
-		s.pe0 = dotCodes(s.fixedPe, s.permPe, s.init)
-		s.peTol = permRelTol * math.Sqrt(fixed.sumPe2) * math.Sqrt(perm.sumPe2)
+		s.pe = newFloatDot(gather(fixed.pe, fixed.codes, order), perm.pe, gather(perm.pe, perm.codes, order),
+			fixed.sumPe2, perm.sumPe2)
 	}
-	s.permKc = perm.kc
-	s.permDistinct = len(perm.groups)
-	s.permCount = perm.count
 	if s.doS || s.doG {
-		w := s.newWorker()
-		nc, nd := w.countPairs(s.groupEnd, s.permKc, s.init)
+		s.kend = newPairSetup(perm, s.groupEnd)
+		s.kend.init = gather(s.kend.table, perm.codes, order)
+		var c pairCounter
+		c.init(&s.kend, false)
+		nc, nd := c.count(&s.kend, s.kend.init)
 		s.s0, s.d0 = nc-nd, nc+nd
 	}
 	return s
@@ -490,15 +586,15 @@ func newPermSetup(x, y []float64, spec PermutationSpec, enumerate bool) *permSet
 
 // gather returns, for each position j, the table entry of observation
 // order[j].
-func gather(table []float64, codes []int32, order []int) []float64 {
-	out := make([]float64, len(order))
+func gather[T any](table []T, codes []int32, order []int) []T {
+	out := make([]T, len(order))
 	for j, i := range order {
 		out[j] = table[codes[i]]
 	}
 	return out
 }
 
-func (s *permSetup) any() bool { return s.doSp || s.doPe || s.doS || s.doG }
+func (s *permSetup) any() bool { return s.doSp || s.doSpF || s.doPe || s.doS || s.doG }
 
 // permCounts accumulates, per worker, the arrangements at least as extreme
 // as the observed one.
@@ -507,24 +603,42 @@ type permCounts struct {
 	enumerated   int64
 }
 
-// permWorker is one goroutine's scratch: the arrangement, the generator,
-// the Fenwick tree for Kendall's counts, and its counts.
+// permWorker is one goroutine's scratch: the permuted column's scores in
+// the current arrangement, the swap partners of a draw, the generator, the
+// pair counter, and its counts.
 type permWorker struct {
-	c    []int32
-	left []int // codes not yet placed (enumeration)
-	rng  blockRNG
-	tree []int32
-	cnt  []int32
+	spV       []int32   // Spearman scores, by position
+	spFV, peV []float64 // float scores, by position
+	kendV     []int32   // Kendall slots, by position
+	js        []int32   // swap partners (Monte Carlo)
+	c         []int32   // arrangement of codes (enumeration)
+	left      []int     // codes not yet placed (enumeration)
+	rng       blockRNG
+	pairs     pairCounter
 	permCounts
 }
 
 func (s *permSetup) newWorker() *permWorker {
-	return &permWorker{
-		c:    make([]int32, len(s.init)),
+	n := len(s.init)
+	w := &permWorker{
+		js:   make([]int32, n),
+		c:    make([]int32, n),
 		left: make([]int, len(s.permCount)),
-		tree: make([]int32, s.permDistinct+1),
-		cnt:  make([]int32, s.permDistinct),
 	}
+	if s.doSp {
+		w.spV = make([]int32, n)
+	}
+	if s.doSpF {
+		w.spFV = make([]float64, n)
+	}
+	if s.doPe {
+		w.peV = make([]float64, n)
+	}
+	if s.doS || s.doG {
+		w.kendV = make([]int32, n)
+		w.pairs.init(&s.kend, false)
+	}
+	return w
 }
 
 func sumCounts(ws []*permWorker) permCounts {
@@ -542,44 +656,171 @@ func sumCounts(ws []*permWorker) permCounts {
 	return t
 }
 
-// eval adds the arrangement c to the worker's counts. It does not allocate.
-func (s *permSetup) eval(c []int32, w *permWorker) {
-	if s.doSp && s.extremeFloat(dotCodes(s.fixedSp, s.permSp, c), s.sp0, s.spTol) {
+// startBlock puts the observed arrangement's scores into the worker.
+func (s *permSetup) startBlock(w *permWorker) {
+	copy(w.spV, s.sp.init)
+	copy(w.spFV, s.spF.init)
+	copy(w.peV, s.pe.init)
+	copy(w.kendV, s.kend.init)
+}
+
+// draw shuffles the worker's scores by one Fisher–Yates permutation (the
+// same one for every score array) and adds it to the worker's counts. The
+// dot products are computed during the swaps, which leave each position
+// final in turn. It does not allocate.
+func (s *permSetup) draw(w *permWorker) {
+	w.rng.swapIndices(w.js)
+	if s.doSp && s.sp.extreme(shuffleDotInt(w.spV, s.sp.fixed, w.js), s.alt) {
 		w.sp++
 	}
-	if s.doPe && s.extremeFloat(dotCodes(s.fixedPe, s.permPe, c), s.pe0, s.peTol) {
+	if s.doSpF && s.spF.extreme(shuffleDotFloat(w.spFV, s.spF.fixed, w.js), s.alt) {
+		w.sp++
+	}
+	if s.doPe && s.pe.extreme(shuffleDotFloat(w.peV, s.pe.fixed, w.js), s.alt) {
 		w.pe++
 	}
 	if s.doS || s.doG {
-		nc, nd := w.countPairs(s.groupEnd, s.permKc, c)
-		if s.doS && s.extremeS(nc-nd) {
-			w.s++
-		}
-		if s.doG && s.extremeGamma(nc-nd, nc+nd) {
-			w.g++
-		}
+		applySwaps(w.kendV, w.js)
+		s.addPairs(w)
 	}
 }
 
-// dotCodes returns Σ a_i · table[c_i], summed in index order. The explicit
-// conversion keeps the compiler from fusing the multiply and add, so every
-// platform rounds the same way.
-func dotCodes(a, table []float64, c []int32) float64 {
-	var s float64
-	for i, code := range c {
-		s += float64(a[i] * table[code])
+// evalCodes adds the arrangement of codes c to the worker's counts
+// (enumeration): it looks up the scores of c and evaluates them as draw
+// does. It does not allocate.
+func (s *permSetup) evalCodes(c []int32, w *permWorker) {
+	if s.doSp {
+		lookup(w.spV, s.sp.table, c)
+		if s.sp.extreme(dotInt(s.sp.fixed, w.spV), s.alt) {
+			w.sp++
+		}
 	}
-	return s
+	if s.doSpF {
+		lookup(w.spFV, s.spF.table, c)
+		if s.spF.extreme(dotFloat(s.spF.fixed, w.spFV), s.alt) {
+			w.sp++
+		}
+	}
+	if s.doPe {
+		lookup(w.peV, s.pe.table, c)
+		if s.pe.extreme(dotFloat(s.pe.fixed, w.peV), s.alt) {
+			w.pe++
+		}
+	}
+	if s.doS || s.doG {
+		lookup(w.kendV, s.kend.table, c)
+		s.addPairs(w)
+	}
 }
 
-func (s *permSetup) extremeFloat(t, t0, tol float64) bool {
-	switch s.alt {
-	case Greater:
-		return t >= t0-tol
-	case Less:
-		return t <= t0+tol
+func (s *permSetup) addPairs(w *permWorker) {
+	nc, nd := w.pairs.count(&s.kend, w.kendV)
+	if s.doS && s.extremeS(nc-nd) {
+		w.s++
 	}
-	return math.Abs(t) >= math.Abs(t0)-tol
+	if s.doG && s.extremeGamma(nc-nd, nc+nd) {
+		w.g++
+	}
+}
+
+// lookup sets v[j] = table[c[j]].
+func lookup[T any](v, table []T, c []int32) {
+	for j, code := range c {
+		v[j] = table[code]
+	}
+}
+
+// applySwaps performs the Fisher–Yates swaps js (see swapIndices) on v:
+// for i = n−1 down to 1, v[i] ↔ v[js[i]].
+func applySwaps(v, js []int32) {
+	js = js[:len(v)]
+	for i := len(v) - 1; i > 0; i-- {
+		j := js[i]
+		v[i], v[j] = v[j], v[i]
+	}
+}
+
+// shuffleDotInt performs the swaps js on v, as applySwaps, and returns
+// Σ a_i v_i over the shuffled v: position i is final once swapped, so the
+// product is taken there. Integer sums are exact in any order.
+func shuffleDotInt(v, a, js []int32) int64 {
+	if len(v) == 0 {
+		return 0
+	}
+	a, js = a[:len(v)], js[:len(v)]
+	var t int64
+	for i := len(v) - 1; i > 0; i-- {
+		j := js[i]
+		vj := v[j]
+		v[j] = v[i]
+		v[i] = vj
+		t += int64(a[i]) * int64(vj)
+	}
+	return t + int64(a[0])*int64(v[0])
+}
+
+// dotInt returns Σ a_i v_i.
+func dotInt(a, v []int32) int64 {
+	v = v[:len(a)]
+	var t int64
+	for i, ai := range a {
+		t += int64(ai) * int64(v[i])
+	}
+	return t
+}
+
+// shuffleDotFloat performs the swaps js on v, as applySwaps, and returns
+// Σ a_i v_i over the shuffled v, summed exactly as dotFloat sums (so the
+// observed arrangement gives the observed value bit for bit): two
+// accumulators, the first over i = n−1, n−3, … ≥ 1, the second over
+// i = n−2, n−4, … ≥ 1, then (first + second) + a₀v₀. Two chains of
+// additions run twice as fast as one. The explicit conversions keep the
+// compiler from fusing multiply and add, so every platform rounds alike.
+func shuffleDotFloat(v, a []float64, js []int32) float64 {
+	if len(v) == 0 {
+		return 0
+	}
+	a, js = a[:len(v)], js[:len(v)]
+	var t0, t1 float64
+	i := len(v) - 1
+	for ; i >= 2; i -= 2 {
+		j := js[i]
+		vj := v[j]
+		v[j] = v[i]
+		v[i] = vj
+		t0 += float64(a[i] * vj)
+		j = js[i-1]
+		vj = v[j]
+		v[j] = v[i-1]
+		v[i-1] = vj
+		t1 += float64(a[i-1] * vj)
+	}
+	if i == 1 {
+		j := js[1]
+		vj := v[j]
+		v[j] = v[1]
+		v[1] = vj
+		t0 += float64(a[1] * vj)
+	}
+	return float64(t0+t1) + float64(a[0]*v[0])
+}
+
+// dotFloat returns Σ a_i v_i in the order of shuffleDotFloat.
+func dotFloat(a, v []float64) float64 {
+	if len(a) == 0 {
+		return 0
+	}
+	v = v[:len(a)]
+	var t0, t1 float64
+	i := len(a) - 1
+	for ; i >= 2; i -= 2 {
+		t0 += float64(a[i] * v[i])
+		t1 += float64(a[i-1] * v[i-1])
+	}
+	if i == 1 {
+		t0 += float64(a[1] * v[1])
+	}
+	return float64(t0+t1) + float64(a[0]*v[0])
 }
 
 func (s *permSetup) extremeS(v int64) bool {
@@ -642,45 +883,218 @@ func mul128(a, b int64) (hi int64, lo uint64) {
 	return int64(h), l
 }
 
-// countPairs returns the concordant and discordant pairs of the fixed
-// column (sorted, tie groups ending at groupEnd) against the permuted codes
-// c, whose Kendall codes are kc[c[i]]. It walks the fixed column's tie
-// groups in order; each observation is compared, through a Fenwick tree of
-// the Kendall codes seen in earlier groups, with every observation of a
-// smaller fixed value: those with a smaller code are concordant, those with
-// a larger one discordant, equal codes are tied in y. Pairs within a group
-// are tied in x. It runs in O(n log k) for k distinct codes and does not
-// allocate.
+// Kendall's counts. The permuted column's value of dense rank v occupies
+// the slots start_v … start_v + t_v − 1 of [0, n), start_v being the number
+// of observations with a smaller value and t_v the size of its tie group,
+// and every observation carries start_v as its score. The count walks the
+// fixed column's tie groups in order; an observation of score p is compared
+// with all those of earlier groups: the ones in slots below p have a
+// smaller value (concordant pairs) and used[p] have its own value (tied in
+// y); the rest are discordant, so n_d = (pairs in different fixed groups) −
+// n_c − (those tied in y). After its group each observation takes the next
+// free slot of its value, p + used[p]. The slots taken form a bit set, and
+// the number of taken slots below p is the count in the 64-slot words
+// before p's word plus a popcount within it. The count before word w is
+// kept
+//
+//   - for n ≤ 1024 (at most 16 words), in sixteen 16-bit lanes packed into
+//     four uint64 variables: taking a slot in word w adds a precomputed row
+//     (1 in every lane after w) to the four, and the lane of word w is
+//     selected without branches, so an observation costs a fixed, short
+//     sequence of operations, O(n) per arrangement (countSmall);
+//   - beyond, in a Fenwick tree over the words, O(n log(n/64)) per
+//     arrangement (countTree).
+//
+// At n = 1000 without ties countSmall measured ~3× faster than countTree,
+// and the whole Kendall test ~5× faster than with the Fenwick tree over the
+// dense codes of y that it replaces. Pairs within a fixed tie group are
+// tied in x and never compared; ties in y need no special case.
 //
 // Reference: P. M. Fenwick (1994), A new data structure for cumulative
 // frequency tables, Software: Practice and Experience 24(3), 327–336.
-func (w *permWorker) countPairs(groupEnd, kc, c []int32) (nc, nd int64) {
-	tree, cnt := w.tree, w.cnt
-	clear(tree)
-	clear(cnt)
-	var seen int64
-	start := int32(0)
+
+// pairSetup is the part of the pair count shared by the workers.
+type pairSetup struct {
+	groupEnd   []int32 // ends of the fixed column's tie groups
+	crossPairs int64   // pairs in different groups of the fixed column
+	table      []int32 // slot start of each code of the permuted column (enumeration)
+	init       []int32 // slot start by position, observed arrangement
+	words      int     // ⌈n/64⌉
+}
+
+func newPairSetup(perm permColumn, groupEnd []int32) pairSetup {
+	n := len(perm.codes)
+	start := make([]int32, len(perm.groups))
+	var acc int32
+	for v, t := range perm.groups {
+		start[v] = acc
+		acc += int32(t)
+	}
+	ps := pairSetup{groupEnd: groupEnd, table: make([]int32, len(perm.kc)), words: (n + 63) / 64}
+	for code, v := range perm.kc {
+		ps.table[code] = start[v]
+	}
+	prev := int32(0)
 	for _, end := range groupEnd {
-		for i := start; i < end; i++ {
-			v := kc[c[i]]
-			var less int64
-			for j := v; j > 0; j &= j - 1 {
-				less += int64(tree[j])
-			}
-			nc += less
-			nd += seen - less - int64(cnt[v])
+		ps.crossPairs += int64(end-prev) * int64(prev)
+		prev = end
+	}
+	return ps
+}
+
+// pairCounter is a worker's scratch for the pair count.
+type pairCounter struct {
+	small *smallPairs // n ≤ smallPairsMax
+	used  []int32     // by slot start: observations of that value placed (countTree)
+	taken []uint64    // bit set of the slots taken (countTree)
+	tree  []int32     // Fenwick tree over the words, 1-based (countTree)
+}
+
+// init sizes the scratch for ps; tree forces countTree (for the tests).
+func (c *pairCounter) init(ps *pairSetup, tree bool) {
+	if len(ps.init) <= smallPairsMax && !tree {
+		c.small = new(smallPairs)
+		return
+	}
+	c.used = make([]int32, len(ps.init))
+	c.taken = make([]uint64, ps.words)
+	c.tree = make([]int32, ps.words+1)
+}
+
+// count returns the concordant and discordant pairs of the fixed column
+// (sorted, tie groups ending at ps.groupEnd) against the permuted column's
+// slot starts p, by position (see above). It does not allocate.
+func (c *pairCounter) count(ps *pairSetup, p []int32) (nc, nd int64) {
+	if c.small != nil {
+		return c.countSmall(ps, p)
+	}
+	return c.countTree(ps, p)
+}
+
+// smallPairsMax is the largest n that countSmall handles.
+const smallPairsMax = 1024
+
+// smallPairs is the scratch of countSmall, in fixed-size arrays so that
+// indexing needs no bounds checks and few registers.
+type smallPairs struct {
+	used  [smallPairsMax]int32       // by slot start: observations of that value placed
+	taken [smallPairsMax / 64]uint64 // bit set of the slots taken
+}
+
+// smallRows[w] is the row added to the four lane words when a slot in word
+// w is taken: 1 in each of the lanes w+1 … 15.
+var smallRows = func() (r [smallPairsMax / 64][4]uint64) {
+	for w := range r {
+		for l := w + 1; l < 16; l++ {
+			r[w][l/4] += 1 << (16 * (l % 4))
 		}
-		for i := start; i < end; i++ {
-			v := kc[c[i]]
-			cnt[v]++
-			for j := int(v) + 1; j < len(tree); j += j & -j {
+	}
+	return r
+}()
+
+// countSmall counts for n ≤ 1024 with the lanes in variables (see above):
+// no chain of additions through memory, no bounds checks and few spilled
+// registers; it measured ~2× faster than the same lanes kept in a slice.
+func (c *pairCounter) countSmall(ps *pairSetup, p []int32) (nc, nd int64) {
+	sp := c.small
+	clear(sp.used[:len(p)])
+	sp.taken = [smallPairsMax / 64]uint64{}
+	var l0, l1, l2, l3 uint64
+	var eq int64 // pairs of earlier groups tied in y
+	if len(ps.groupEnd) == len(p) {
+		// No ties in the fixed column: each observation is its own group,
+		// counted and placed at once.
+		for _, v := range p {
+			v &= smallPairsMax - 1 // v < n ≤ 1024 already; drops the bounds checks
+			x, sel := l0, v>>8     // the lane word of word v/64, selected by CMOV
+			if sel == 1 {
+				x = l1
+			}
+			if sel == 2 {
+				x = l2
+			}
+			if sel == 3 {
+				x = l3
+			}
+			nc += int64(uint16(x>>((v>>2)&48))) + int64(bits.OnesCount64(sp.taken[v>>6]&(1<<(v&63)-1)))
+			u := sp.used[v]
+			eq += int64(u)
+			sp.used[v] = u + 1
+			slot := (v + u) & (smallPairsMax - 1)
+			sp.taken[slot>>6] |= 1 << (slot & 63)
+			row := &smallRows[slot>>6]
+			l0 += row[0]
+			l1 += row[1]
+			l2 += row[2]
+			l3 += row[3]
+		}
+		return nc, ps.crossPairs - nc - eq
+	}
+	start := int32(0)
+	for _, end := range ps.groupEnd {
+		for _, v := range p[start:end] {
+			v &= smallPairsMax - 1
+			x, sel := l0, v>>8
+			if sel == 1 {
+				x = l1
+			}
+			if sel == 2 {
+				x = l2
+			}
+			if sel == 3 {
+				x = l3
+			}
+			nc += int64(uint16(x>>((v>>2)&48))) + int64(bits.OnesCount64(sp.taken[v>>6]&(1<<(v&63)-1)))
+			eq += int64(sp.used[v])
+		}
+		for _, v := range p[start:end] {
+			v &= smallPairsMax - 1
+			u := sp.used[v]
+			sp.used[v] = u + 1
+			slot := (v + u) & (smallPairsMax - 1)
+			sp.taken[slot>>6] |= 1 << (slot & 63)
+			row := &smallRows[slot>>6]
+			l0 += row[0]
+			l1 += row[1]
+			l2 += row[2]
+			l3 += row[3]
+		}
+		start = end
+	}
+	return nc, ps.crossPairs - nc - eq
+}
+
+// countTree counts for any n, keeping the count of taken slots before each
+// word in a Fenwick tree over the words.
+func (c *pairCounter) countTree(ps *pairSetup, p []int32) (nc, nd int64) {
+	used, taken, tree := c.used, c.taken, c.tree
+	clear(used)
+	clear(taken)
+	clear(tree)
+	var eq int64 // pairs of earlier groups tied in y
+	start := int32(0)
+	for _, end := range ps.groupEnd {
+		for _, v := range p[start:end] {
+			w := int(uint32(v) >> 6)
+			nc += int64(bits.OnesCount64(taken[w] & (1<<(v&63) - 1)))
+			for j := w; j > 0; j &= j - 1 {
+				nc += int64(tree[j])
+			}
+			eq += int64(used[v])
+		}
+		for _, v := range p[start:end] {
+			u := used[v]
+			used[v] = u + 1
+			slot := uint32(v + u)
+			w := int(slot >> 6)
+			taken[w] |= 1 << (slot & 63)
+			for j := w + 1; j < len(tree); j += j & -j {
 				tree[j]++
 			}
 		}
-		seen += int64(end - start)
 		start = end
 	}
-	return nc, nd
+	return nc, ps.crossPairs - nc - eq
 }
 
 // fill writes the p-value of each measure: b/total when exact, else

@@ -690,13 +690,20 @@ func TestNextArrangement(t *testing.T) {
 	}
 }
 
-// TestCountPairsFenwick: the allocation-free count of the permutation
-// worker agrees with CountPairs on the observed arrangement and on shuffled
-// ones, with ties in x, in y and in both.
-func TestCountPairsFenwick(t *testing.T) {
+// TestPairCounter: the allocation-free pair count of the permutation
+// worker, countSmall (n ≤ 1024) and countTree, agrees with CountPairs on the
+// observed arrangement and on shuffled ones, with ties in x, in y and in
+// both, and n across several words and across smallPairsMax.
+func TestPairCounter(t *testing.T) {
 	rng := rand.New(rand.NewPCG(11, 12))
 	for trial := range 300 {
 		n := 1 + rng.IntN(120)
+		switch trial % 10 {
+		case 0:
+			n = 1 + rng.IntN(2000)
+		case 5:
+			n = smallPairsMax - 1 + rng.IntN(3)
+		}
 		x, y := make([]float64, n), make([]float64, n)
 		kx, ky := 1+rng.IntN(10), 1+rng.IntN(10)
 		for i := range x {
@@ -705,26 +712,43 @@ func TestCountPairsFenwick(t *testing.T) {
 			if trial%3 == 0 {
 				y[i] = rng.NormFloat64()
 			}
+			if trial%4 == 0 {
+				x[i] = rng.NormFloat64()
+			}
 		}
 		s := newPermSetup(x, y, PermutationSpec{Measures: []Measure{KendallA, Gamma}, Alt: TwoSided}, false)
-		w := s.newWorker()
-		c := CountPairs(x, y)
-		if nc, nd := w.countPairs(s.groupEnd, s.permKc, s.init); nc != c.Concordant || nd != c.Discordant {
-			t.Fatalf("trial %d: n_c, n_d = %d, %d; CountPairs gives %d, %d", trial, nc, nd, c.Concordant, c.Discordant)
+		var smallC, treeC pairCounter
+		smallC.init(&s.kend, false)
+		treeC.init(&s.kend, true)
+		if (smallC.small != nil) != (n <= smallPairsMax) || treeC.small != nil {
+			t.Fatalf("n = %d: wrong counter chosen", n)
 		}
-		// A shuffled arrangement, rebuilt as data: the fixed column in
-		// sorted order against the permuted column's dense codes.
 		xs := slices.Sorted(slices.Values(x))
+		w := s.newWorker()
 		w.rng.reset(NewStreamKey(int64(trial)), 0)
-		copy(w.c, s.init)
-		w.rng.shuffle(w.c)
-		yp := make([]float64, n)
-		for i, code := range w.c {
-			yp[i] = float64(s.permKc[code])
-		}
-		c = CountPairs(xs, yp)
-		if nc, nd := w.countPairs(s.groupEnd, s.permKc, w.c); nc != c.Concordant || nd != c.Discordant {
-			t.Fatalf("trial %d, shuffled: n_c, n_d = %d, %d; CountPairs gives %d, %d", trial, nc, nd, c.Concordant, c.Discordant)
+		s.startBlock(w)
+		for d := range 3 {
+			if d > 0 {
+				w.rng.swapIndices(w.js)
+				applySwaps(w.kendV, w.js)
+			}
+			// The arrangement rebuilt as data: the fixed column in sorted
+			// order against the permuted column's slot starts, which order
+			// its values.
+			yp := make([]float64, n)
+			for i, p := range w.kendV {
+				yp[i] = float64(p)
+			}
+			c := CountPairs(xs, yp)
+			if nc, nd := smallC.count(&s.kend, w.kendV); nc != c.Concordant || nd != c.Discordant {
+				t.Fatalf("trial %d, draw %d, small/tree: n_c, n_d = %d, %d; CountPairs gives %d, %d", trial, d, nc, nd, c.Concordant, c.Discordant)
+			}
+			if nc, nd := treeC.count(&s.kend, w.kendV); nc != c.Concordant || nd != c.Discordant {
+				t.Fatalf("trial %d, draw %d, tree: n_c, n_d = %d, %d; CountPairs gives %d, %d", trial, d, nc, nd, c.Concordant, c.Discordant)
+			}
+			if d == 0 && (c.S() != s.s0 || c.Concordant+c.Discordant != s.d0) {
+				t.Fatalf("trial %d: observed S, n_c + n_d = %d, %d; CountPairs gives %d, %d", trial, s.s0, s.d0, c.S(), c.Concordant+c.Discordant)
+			}
 		}
 	}
 }
@@ -763,17 +787,147 @@ func TestPermutationPanics(t *testing.T) {
 	mustPanic(t, "Arrangements NaN", func() { Arrangements([]float64{1, math.NaN()}, []float64{1, 2}) })
 }
 
-// TestSpearmanInnerLoopAllocs: a Monte Carlo Spearman test allocates a
-// fixed amount (setup and per-worker scratch), whatever the number of draws.
+// TestSpearmanInnerLoopAllocs: a Monte Carlo test allocates a fixed amount
+// (setup and per-worker scratch), whatever the number of draws, for every
+// measure, with Kendall's counts in countSmall (n = 40) and in countTree
+// (n = 1100).
 func TestSpearmanInnerLoopAllocs(t *testing.T) {
 	x, y := permData(40, 8)
-	for _, ms := range [][]Measure{{Spearman}, {Spearman, KendallB, Gamma, PearsonR}} {
+	xl, yl := permData(1100, 8)
+	for _, c := range []struct {
+		x, y []float64
+		ms   []Measure
+	}{{x, y, []Measure{Spearman}}, {x, y, []Measure{Spearman, KendallB, Gamma, PearsonR}}, {xl, yl, []Measure{KendallB, Gamma}}} {
 		allocs := func(draws int) float64 {
-			spec := PermutationSpec{Measures: ms, Rule: TieAverage, Alt: TwoSided, Draws: draws}
-			return testing.AllocsPerRun(2, func() { PermutationTest(context.Background(), x, y, spec) })
+			spec := PermutationSpec{Measures: c.ms, Rule: TieAverage, Alt: TwoSided, Draws: draws}
+			return testing.AllocsPerRun(2, func() { PermutationTest(context.Background(), c.x, c.y, spec) })
 		}
-		if a, b := allocs(permBlock), allocs(6*permBlock); a != b {
-			t.Errorf("%v: %v allocations for 1 block, %v for 6: the draws allocate", ms, a, b)
+		if a, b := allocs(permBlock), allocs(3*permBlock); a != b {
+			t.Errorf("n = %d, %v: %v allocations for 1 block, %v for 3: the draws allocate", len(c.x), c.ms, a, b)
+		}
+	}
+}
+
+// TestSpearmanIntegerMatchesFloat: Spearman's exact integer statistic and
+// the float statistic on centred ranks with the tolerance (the path beyond
+// spIntMaxN, forced here) count the same arrangements, Monte Carlo (the
+// same draws) and exact, on tied data under every rule and alternative.
+func TestSpearmanIntegerMatchesFloat(t *testing.T) {
+	rules := []TieRule{TieAverage, TieMin, TieMax, TieDense, TieFirst}
+	run := func(x, y []float64, spec PermutationSpec, intMax int) (mc, ex []float64) {
+		defer func(v int) { spIntMaxN = v }(spIntMaxN)
+		spIntMaxN = intMax
+		r, err := PermutationTest(context.Background(), x, y, spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		mc = r.P
+		if n := len(x); n <= 9 {
+			r, err = ExactPermutationTest(context.Background(), x, y, spec)
+			if err != nil {
+				t.Fatal(err)
+			}
+			ex = r.P
+		}
+		return mc, ex
+	}
+	for trial := range 30 {
+		n := []int{5, 8, 9, 40, 300}[trial%5]
+		x, y := permData(n, uint64(trial))
+		for _, alt := range allAlts {
+			spec := PermutationSpec{Measures: []Measure{Spearman, KendallB}, Rule: rules[trial%len(rules)], Alt: alt,
+				Draws: 3000, Key: NewStreamKey(int64(trial), "int-float"), Workers: 2}
+			mcI, exI := run(x, y, spec, 1<<19)
+			mcF, exF := run(x, y, spec, 0)
+			if !slices.Equal(mcI, mcF) || !slices.Equal(exI, exF) {
+				t.Errorf("trial %d (n = %d, %v, %v): integer p = %v / %v, float p = %v / %v",
+					trial, n, spec.Rule, alt, mcI, exI, mcF, exF)
+			}
+		}
+	}
+}
+
+// TestIntDotExtreme: the integer comparisons of intDot agree with the
+// definition, |nT − ΣaΣb| ≥ |nT₀ − ΣaΣb| (two-sided) and T ≷ T₀ (one-sided),
+// evaluated in math/big, for every arrangement of small integer scores,
+// including arrangements exactly on the thresholds.
+func TestIntDotExtreme(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 22))
+	for trial := range 200 {
+		n := 2 + rng.IntN(6)
+		a, b := make([]int32, n), make([]int32, n)
+		for i := range a {
+			a[i] = int32(rng.IntN(2*n) + 1)
+			b[i] = int32(rng.IntN(2*n) + 1)
+		}
+		d := newIntDot(a, nil, b)
+		var sa, sb int64
+		for i := range a {
+			sa += int64(a[i])
+			sb += int64(b[i])
+		}
+		nc := new(big.Int).Mul(big.NewInt(sa), big.NewInt(sb))
+		dev := func(t int64) *big.Int {
+			v := new(big.Int).Mul(big.NewInt(int64(n)), big.NewInt(t))
+			return v.Sub(v, nc).Abs(v)
+		}
+		dev0 := dev(d.t0)
+		perm := slices.Clone(b)
+		var visit func(k int)
+		visit = func(k int) {
+			if k == n {
+				tt := dotInt(a, perm)
+				if got, want := d.extreme(tt, TwoSided), dev(tt).Cmp(dev0) >= 0; got != want {
+					t.Fatalf("trial %d: T = %d, T₀ = %d: two-sided extreme %v, want %v", trial, tt, d.t0, got, want)
+				}
+				if d.extreme(tt, Greater) != (tt >= d.t0) || d.extreme(tt, Less) != (tt <= d.t0) {
+					t.Fatalf("trial %d: one-sided comparison of %d with %d", trial, tt, d.t0)
+				}
+				return
+			}
+			for i := k; i < n; i++ {
+				perm[k], perm[i] = perm[i], perm[k]
+				visit(k + 1)
+				perm[k], perm[i] = perm[i], perm[k]
+			}
+		}
+		visit(0)
+	}
+}
+
+// TestShuffleDot: the fused shuffles leave the same arrangement as
+// applySwaps, and their sums equal dotInt and dotFloat on it (the float
+// sum bit for bit: the same order of summation).
+func TestShuffleDot(t *testing.T) {
+	rng := rand.New(rand.NewPCG(31, 32))
+	var r blockRNG
+	r.reset(NewStreamKey(31, "shuffle dot"), 0)
+	for _, n := range []int{1, 2, 3, 4, 7, 64, 1001} {
+		ai, bi := make([]int32, n), make([]int32, n)
+		af, bf := make([]float64, n), make([]float64, n)
+		order := make([]int32, n)
+		for i := range n {
+			ai[i], bi[i] = int32(rng.IntN(1000)), int32(rng.IntN(1000))
+			af[i], bf[i] = rng.NormFloat64(), rng.NormFloat64()
+			order[i] = int32(i)
+		}
+		bi0, bf0 := slices.Clone(bi), slices.Clone(bf)
+		js := make([]int32, n)
+		for range 5 {
+			r.swapIndices(js)
+			applySwaps(order, js)
+			ti, tf := shuffleDotInt(bi, ai, js), shuffleDotFloat(bf, af, js)
+			for i, o := range order {
+				if bi[i] != bi0[o] || bf[i] != bf0[o] {
+					t.Fatalf("n = %d: position %d holds another item than applySwaps put there", n, i)
+				}
+			}
+			if got := dotInt(ai, bi); got != ti {
+				t.Fatalf("n = %d: shuffleDotInt %d, dotInt %d", n, ti, got)
+			}
+			if got := dotFloat(af, bf); math.Float64bits(got) != math.Float64bits(tf) {
+				t.Fatalf("n = %d: shuffleDotFloat %v, dotFloat %v", n, tf, got)
+			}
 		}
 	}
 }

@@ -118,6 +118,84 @@ func (r *blockRNG) shuffle(c []int32) {
 	}
 }
 
+// batchBits bounds the product P of the ranges drawn from one 64-bit word
+// by swapIndices: P < 2^batchBits, so the rejection test needs a division
+// with probability 2^(batchBits−64) = 1/256 per word. Larger budgets (up
+// to 63) read ~15% fewer words but measured no faster.
+const batchBits = 56
+
+// batchSize[b] is the number of ranges of b bits drawn from one word,
+// ⌊batchBits/b⌋, so that their product stays below 2^batchBits (a table
+// lookup rather than a division per word).
+var batchSize = func() (t [65]uint8) {
+	for b := 1; b <= 64; b++ {
+		t[b] = uint8(max(1, batchBits/b))
+	}
+	return t
+}()
+
+// swapIndices fills js[i], for i = len(js)−1 down to 1, with independent
+// uniform integers in [0, i]: the swap partners of a Fisher–Yates shuffle of
+// len(js) items (js[0] is left as it is). It is the shuffle of shuffle, but
+// draws several partners from each 64-bit output of the generator, by the
+// batched form of Lemire's method: with ranges b₁ = i+1, b₂ = i, …, b_k and
+// P = b₁⋯b_k < 2^batchBits (k as large as that allows), one word u gives the
+// digits of ⌊u·P/2⁶⁴⌋ in the mixed radix (b₁, …, b_k) as the k partners
+// (see batchDigits), and the word is drawn again when u·P mod 2⁶⁴ falls below
+// 2⁶⁴ mod P, which makes ⌊u·P/2⁶⁴⌋, hence the k partners, exactly uniform.
+// At n = 1000 it reads about 180 words per shuffle instead of 999: drawing
+// the partners (BenchmarkSwapIndices) takes ~0.3 of the time of shuffle
+// (BenchmarkShuffleIndices), and with the swaps applied the shuffle is
+// ~2.5× faster. It consumes the stream differently from shuffle, which the
+// bootstrap's jackknife groups keep using. It does not allocate.
+//
+// Reference: N. Brackett-Rozinsky and D. Lemire (2024), Batched ranged
+// random integer generation, Software: Practice and Experience,
+// doi:10.1002/spe.3369 (arXiv:2408.06213); D. Lemire (2019), op. cit.
+// (below).
+func (r *blockRNG) swapIndices(js []int32) {
+	i := len(js) - 1
+	for i > 0 {
+		m := uint64(i) + 1
+		k := min(i, int(batchSize[bits.Len64(m)]))
+		dst := js[i+1-k : i+1]
+		for {
+			lo := batchDigits(r.src.Uint64(), m, dst)
+			// 2⁶⁴ mod P < P < 2^batchBits: the exact threshold is needed
+			// only below 2^batchBits.
+			if lo >= 1<<batchBits || lo >= batchThreshold(m, k) {
+				break
+			}
+		}
+		i -= k
+	}
+}
+
+// batchThreshold returns 2⁶⁴ mod P for P = m(m−1)⋯(m−k+1) < 2⁶⁴.
+func batchThreshold(m uint64, k int) uint64 {
+	p := m
+	for t := 1; t < k; t++ {
+		p *= m - uint64(t)
+	}
+	return -p % p
+}
+
+// batchDigits writes the mixed-radix digits of ⌊u·P/2⁶⁴⌋, P = m(m−1)⋯(m−k+1)
+// with k = len(dst), into dst from the end: dst[k−1] ∈ [0, m), dst[k−2] ∈
+// [0, m−1), …, dst[0] ∈ [0, m−k+1), and returns u·P mod 2⁶⁴. Each step
+// multiplies the low word of the previous product by the next range: by
+// induction u·b₁⋯b_t = (x₁b₂⋯b_t + … + x_t)·2⁶⁴ + lo_t. P must be < 2⁶⁴.
+func batchDigits(u, m uint64, dst []int32) uint64 {
+	lo := u
+	for t := len(dst) - 1; t >= 0; t-- {
+		var hi uint64
+		hi, lo = bits.Mul64(lo, m)
+		dst[t] = int32(hi)
+		m--
+	}
+	return lo
+}
+
 // runBlocks calls work(worker, block) once for every block in [0, blocks),
 // on min(workers, blocks) goroutines (at least one) that take the next
 // block from a shared counter. Before working on a block a worker checks

@@ -5,6 +5,9 @@ import (
 	"crypto/sha256"
 	"errors"
 	"math"
+	"math/big"
+	"math/bits"
+	"math/rand/v2"
 	"slices"
 	"sync/atomic"
 	"testing"
@@ -221,6 +224,143 @@ func TestStreamsIndependentOfScheduling(t *testing.T) {
 	for _, w := range []int{2, 4, 7} {
 		if got := one(w); !slices.Equal(got, want) {
 			t.Errorf("%d workers: draws differ", w)
+		}
+	}
+}
+
+// TestBatchDigits checks the batched draw against math/big: the digits
+// batchDigits writes are those of ⌊u·P/2⁶⁴⌋ in the mixed radix of the
+// ranges, its result is u·P mod 2⁶⁴, and batchThreshold is 2⁶⁴ mod P;
+// for every bit length the batch size keeps P below 2^batchBits.
+func TestBatchDigits(t *testing.T) {
+	two64 := new(big.Int).Lsh(big.NewInt(1), 64)
+	for b := 1; b <= 32; b++ {
+		largest := new(big.Int).Exp(big.NewInt(1<<b-1), big.NewInt(int64(batchSize[b])), nil)
+		if largest.BitLen() > batchBits {
+			t.Errorf("%d-bit ranges: (2^%d − 1)^%d has %d bits", b, b, batchSize[b], largest.BitLen())
+		}
+	}
+	rng := rand.New(rand.NewPCG(7, 8))
+	ms := []uint64{2, 3, 4, 10, 63, 64, 65, 511, 512, 1000, 1 << 16, 1<<20 + 3, 1<<28 - 1, 1<<31 - 1}
+	for _, m := range ms {
+		k := min(int(m)-1, int(batchSize[bits.Len64(m)]))
+		p := big.NewInt(1)
+		for d := range k {
+			p.Mul(p, new(big.Int).SetUint64(m-uint64(d)))
+		}
+		if got, want := batchThreshold(m, k), new(big.Int).Mod(two64, p).Uint64(); got != want {
+			t.Errorf("batchThreshold(%d, %d) = %d, want %d", m, k, got, want)
+		}
+		us := []uint64{0, 1, math.MaxUint64, 1 << 63}
+		for range 200 {
+			us = append(us, rng.Uint64())
+		}
+		dst := make([]int32, k)
+		for _, u := range us {
+			lo := batchDigits(u, m, dst)
+			prod := new(big.Int).Mul(new(big.Int).SetUint64(u), p)
+			q, r := new(big.Int).QuoRem(prod, two64, new(big.Int))
+			x := new(big.Int)
+			for d := k - 1; d >= 0; d-- { // dst[k−1] is the most significant digit, radix m
+				radix := m - uint64(k-1-d)
+				if uint64(dst[d]) >= radix {
+					t.Fatalf("m %d, u %d: digit %d = %d ≥ %d", m, u, d, dst[d], radix)
+				}
+				x.Mul(x, new(big.Int).SetUint64(radix)).Add(x, big.NewInt(int64(dst[d])))
+			}
+			if x.Cmp(q) != 0 || lo != r.Uint64() {
+				t.Fatalf("m %d, k %d, u %d: digits give %v, lo %d; want %v, %v", m, k, u, x, lo, q, r)
+			}
+		}
+	}
+}
+
+// TestSwapIndices: every partner js[i] lies in [0, i] and js[0] is left
+// alone; the shuffles the partners make are uniform: all orders of n = 4
+// and n = 6 items (one word per shuffle) and, at n = 70 (several words of
+// different batch sizes per shuffle), the final positions of the first and
+// the last item pass chi-square tests at the 1e-6 level (fixed stream).
+func TestSwapIndices(t *testing.T) {
+	var r blockRNG
+	r.reset(NewStreamKey(9, "swap indices"), 0)
+	js := make([]int32, 2000)
+	for range 50 {
+		js[0] = -7
+		r.swapIndices(js)
+		for i, j := range js[1:] {
+			if j < 0 || int(j) > i+1 {
+				t.Fatalf("js[%d] = %d", i+1, j)
+			}
+		}
+		if js[0] != -7 {
+			t.Fatalf("js[0] changed")
+		}
+	}
+	chi2 := func(counts map[int]float64, cells int, draws float64) float64 {
+		var c float64
+		e := draws / float64(cells)
+		for k := range cells {
+			o := counts[k]
+			c += (o - e) * (o - e) / e
+		}
+		return c
+	}
+	for _, n := range []int{4, 6} {
+		orders := 1
+		for k := 2; k <= n; k++ {
+			orders *= k
+		}
+		draws := 200 * orders
+		counts := map[int]float64{}
+		v := make([]int32, n)
+		js := make([]int32, n)
+		for range draws {
+			for i := range v {
+				v[i] = int32(i)
+			}
+			r.swapIndices(js)
+			applySwaps(v, js)
+			code := 0 // the order's index in the factorial number system
+			for i := range v {
+				code = code*(n-i) + int(v[i])
+				for k := i + 1; k < n; k++ {
+					if v[k] > v[i] {
+						v[k]--
+					}
+				}
+			}
+			counts[code]++
+		}
+		if len(counts) != orders {
+			t.Fatalf("n = %d: %d distinct orders, want %d", n, len(counts), orders)
+		}
+		if c, crit := chi2(counts, orders, float64(draws)), chiSquareCritical(float64(orders-1)); c > crit {
+			t.Errorf("n = %d: chi-square %.1f over %d orders exceeds %.1f", n, c, orders, crit)
+		}
+	}
+	const n, draws = 70, 70000
+	first, last := map[int]float64{}, map[int]float64{}
+	v := make([]int32, n)
+	js = js[:n]
+	for range draws {
+		for i := range v {
+			v[i] = int32(i)
+		}
+		r.swapIndices(js)
+		applySwaps(v, js)
+		for pos, item := range v {
+			switch item {
+			case 0:
+				first[pos]++
+			case n - 1:
+				last[pos]++
+			}
+		}
+	}
+	crit := chiSquareCritical(n - 1)
+	for name, counts := range map[string]map[int]float64{"first": first, "last": last} {
+		if c := chi2(counts, n, draws); c > crit {
+			t.Errorf("n = %d: position of the %s item: chi-square %.1f exceeds %.1f", n, name, c, crit)
 		}
 	}
 }
