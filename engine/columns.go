@@ -58,6 +58,10 @@ type column struct {
 	ranks []float64        // under the test's tie rule
 	mono  *stats.MonotoneX // the monotonicity subsample prepared as x
 	mid   []float64        // midranks of the monotonicity subsample (as y)
+
+	// arrangements is n! over the product of t! for the column's tie
+	// groups: stats.Arrangements of a pair is the smaller of its columns'.
+	arrangements float64
 }
 
 // monotoneRows is the most rows the monotonicity check reads: above it, an
@@ -187,13 +191,14 @@ func (src *cellSource) sample(pair recipe.Pair) (sample, *column, *column) {
 func (c *column) prepare(rule stats.TieRule) *column {
 	c.once.Do(func() {
 		if len(c.values) == 0 {
-			c.share = math.NaN()
+			c.share, c.arrangements = math.NaN(), math.Inf(1)
 			return
 		}
 		c.ranks, c.share = stats.Rank(c.values, rule), stats.TieShare(c.values)
 		sub := monotoneSubsample(c.values)
 		c.mono = stats.PrepareMonotone(sub)
 		c.mid = stats.Rank(sub, stats.TieAverage)
+		c.arrangements = stats.Arrangements(c.values, c.values)
 	})
 	return c
 }

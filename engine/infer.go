@@ -79,7 +79,10 @@ const autoPermutationMaxN = 50
 // tested through S = n_c − n_d: under independence with fixed margins each
 // is S divided by a positive constant, except gamma, whose permutation
 // distribution is enumerated or sampled on gamma itself.
-func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
+//
+// arr returns the number of distinct arrangements of the sample's values
+// (stats.Arrangements), computed only when a route may enumerate.
+func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool, arr func() float64) pChoice {
 	n := len(s.x)
 	if len(t.Controls) > 0 {
 		return pChoice{route: routePartialT, method: stats.PT}
@@ -92,7 +95,14 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 	}
 	monteCarlo := pChoice{route: routeMonteCarlo, method: stats.PPermutation}
 	enumerate := pChoice{route: routeEnumerate, method: stats.PExact}
-	arrangements := arrangementsFor(t, m, s)
+	// The count of arrangements costs a sort of each column: only the
+	// routes that can enumerate ask for it.
+	arrangements := func() float64 {
+		if m == stats.Spearman && t.Ties.Rule == stats.TieFirst {
+			return arrangementsFor(t, m, s)
+		}
+		return arr()
+	}
 	if m == stats.Spearman && t.Ties.Rule == stats.TieFirst {
 		// The "first" rule breaks every tie: the ranks are a permutation
 		// of 1..n, so the untied null of rho applies exactly.
@@ -114,10 +124,10 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 	case recipe.PAsymptotic:
 		return asymptotic()
 	case recipe.PPermutation:
-		if arrangements <= float64(min(t.Permutations, stats.MaxEnumeration)) {
+		if a := arrangements(); a <= float64(min(t.Permutations, stats.MaxEnumeration)) {
 			enumerate.notes = []string{fmt.Sprintf(
 				"the %.0f distinct arrangements of these data are no more than the %d permutations asked for, so all of them were enumerated and the p-value is exact",
-				arrangements, t.Permutations)}
+				a, t.Permutations)}
 			return enumerate
 		}
 		return monteCarlo
@@ -131,7 +141,7 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 		switch {
 		case !tied && m == stats.Spearman && n <= stats.SpearmanEdgeworthMaxN:
 			return pChoice{route: routeEdgeworth, method: stats.PEdgeworth}
-		case tied && arrangements <= stats.MaxEnumeration:
+		case tied && arrangements() <= stats.MaxEnumeration:
 			return enumerate
 		case tied && n <= autoPermutationMaxN:
 			return monteCarlo
@@ -141,15 +151,16 @@ func pMethodFor(t *recipe.Test, m stats.Measure, s sample, tied bool) pChoice {
 		if c, ok := exactUntied(); ok {
 			return c
 		}
-		if arrangements <= stats.MaxEnumeration {
+		a := arrangements()
+		if a <= stats.MaxEnumeration {
 			return enumerate
 		}
 		why := fmt.Sprintf("n = %d", n)
 		if tied {
 			why += " with ties"
 		}
-		many := fmt.Sprintf("about %.2g", arrangements)
-		if math.IsInf(arrangements, 1) {
+		many := fmt.Sprintf("about %.2g", a)
+		if math.IsInf(a, 1) {
 			many = "more than 1e308"
 		}
 		monteCarlo.notes = []string{fmt.Sprintf(

@@ -107,6 +107,15 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 		base = append(base, monotoneNote(c)...)
 	}
 
+	// The distinct arrangements of the values, for the routes that may
+	// enumerate: from the shared columns' counts when there are any.
+	arrangements := func() float64 {
+		if c.px != nil {
+			return min(c.px.arrangements, c.py.arrangements)
+		}
+		return stats.Arrangements(s.x, s.y)
+	}
+
 	results := make([]Result, len(t.Measures))
 	choices := make([]pChoice, len(t.Measures))
 	var counts *stats.PairCounts // Kendall's pair counts, computed once
@@ -121,7 +130,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 		}
 		r.Warnings = slices.Clone(base)
 		if defined {
-			choices[i] = pMethodFor(t, m, s, tied)
+			choices[i] = pMethodFor(t, m, s, tied, arrangements)
 			fromMatrix := false
 			if c.px != nil && k == 0 {
 				v, ok, err := c.src.matrixValue(env, m, pair)
