@@ -59,6 +59,9 @@ type column struct {
 	mono  *stats.MonotoneX // the monotonicity subsample prepared as x
 	mid   []float64        // midranks of the monotonicity subsample (as y)
 
+	constant   bool    // every value equal
+	constValue float64 // that value
+
 	// arrangements is n! over the product of t! for the column's tie
 	// groups: stats.Arrangements of a pair is the smaller of its columns'.
 	arrangements float64
@@ -199,6 +202,7 @@ func (c *column) prepare(rule stats.TieRule) *column {
 		c.mono = stats.PrepareMonotone(sub)
 		c.mid = stats.Rank(sub, stats.TieAverage)
 		c.arrangements = stats.Arrangements(c.values, c.values)
+		c.constant, c.constValue = constant(c.values)
 	})
 	return c
 }
@@ -275,4 +279,10 @@ func (src *cellSource) buildMatrices(env cellEnv) error {
 		src.rMatrix = m
 	}
 	return nil
+}
+
+// isConstant is constant() for the column's values (v is ignored: it is
+// the column's own slice), computed once.
+func (c *column) isConstant(_ []float64) (bool, float64) {
+	return c.constant, c.constValue
 }

@@ -90,11 +90,16 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 		base = append(base, fmt.Sprintf("n = %d is too few pairs: at least %d are needed, so the estimate is undefined", n, minPairs))
 	} else {
 		ds := t.Pairing.Dataset
-		if cst, v := constant(s.x); cst {
+		constX, constY := constant, constant
+		if c.px != nil {
+			// Shared columns know it already: no scan per pair.
+			constX, constY = c.px.isConstant, c.py.isConstant
+		}
+		if cst, v := constX(s.x); cst {
 			base = append(base, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.X, n, valueText(ds, pair.X, v)))
 			defined = false
 		}
-		if cst, v := constant(s.y); cst {
+		if cst, v := constY(s.y); cst {
 			base = append(base, fmt.Sprintf("%s is constant after deletion (all %d values are %s): the correlation is undefined", pair.Y, n, valueText(ds, pair.Y, v)))
 			defined = false
 		}
