@@ -188,16 +188,19 @@ func (src *cellSource) sample(pair recipe.Pair) (sample, *column, *column) {
 
 // prepare computes the column's shared statistics once; safe for
 // concurrent use by the cells that share the column.
-//
-// TODO: one radix pass for ranks and tie share (stats.RankTies) once it
-// lands.
+
 func (c *column) prepare(rule stats.TieRule) *column {
 	c.once.Do(func() {
 		if len(c.values) == 0 {
 			c.share, c.arrangements = math.NaN(), math.Inf(1)
 			return
 		}
-		c.ranks, c.share = stats.Rank(c.values, rule), stats.TieShare(c.values)
+		// One radix pass gives the ranks and the tie groups.
+		r := stats.RankTies(c.values, rule)
+		c.ranks, c.share = r.Ranks, float64(r.Tied)/float64(len(c.values))
+		if len(c.values) < 2 {
+			c.share = 0 // as stats.TieShare
+		}
 		sub := monotoneSubsample(c.values)
 		c.mono = stats.PrepareMonotone(sub)
 		c.mid = stats.Rank(sub, stats.TieAverage)

@@ -152,7 +152,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 				r.Estimate = stats.PartialSpearman(s.x, s.y, s.z, t.Ties.Rule)
 			case m == stats.Spearman && c.px != nil:
 				// SpearmanRho on the columns' shared ranks.
-				r.Estimate = stats.Pearson(c.px.ranks, c.py.ranks)
+				r.Estimate = stats.SpearmanRanks(c.px.ranks, c.py.ranks)
 			case m == stats.Spearman:
 				r.Estimate = stats.SpearmanRho(s.x, s.y, t.Ties.Rule)
 			case m == stats.PearsonR && (hasInf(s.x) || hasInf(s.y) || anyInf(s.z)):

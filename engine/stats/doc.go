@@ -10,15 +10,25 @@
 //
 // The pieces:
 //
-//   - Rank and TieShare: ranking under a TieRule, in O(n log n).
-//   - Pearson, SpearmanRho: product-moment r, and ρ as r on ranks.
 //   - CorrelationMatrix, SpearmanMatrix: the k×k matrix of r or ρ among k
 //     columns (each ranked once for ρ), as the Gram matrix of the centred
 //     unit-length columns, blocked for the cache and tiled over workers
 //     with gonum's Dgemv inside; each element agrees with the pairwise
 //     kernel to rounding and does not depend on the worker count.
+//   - Argsort: a stable LSD radix argsort of float64 values on
+//     order-preserving bit patterns (8-bit digits, constant digits
+//     skipped), O(n); −0 ties with +0, ±Inf are ordinary, NaN panics.
+//   - RankTies, Rank and TieShare: ranking under a TieRule by one radix
+//     argsort and one walk over the sorted order, which also gives the tie
+//     groups (Ranking); O(n).
+//   - Pearson, SpearmanRho, SpearmanRanks: product-moment r, and ρ as r on
+//     ranks (the two columns ranked concurrently for large n, bit for bit
+//     the same result); SpearmanRanks for ranks already held.
 //   - CountPairs: one O(n log n) pass (Knight 1966) that classifies every
-//     pair as concordant, discordant or tied and keeps the tie-group sums;
+//     pair as concordant, discordant or tied and keeps the tie-group sums,
+//     on radix argsorts of both columns, with discordant pairs counted by a
+//     Fenwick tree over the codes of the column with fewer distinct values
+//     (heavy ties) or as inversions by a two-ended merge sort;
 //     its methods give τ_a, τ_b, Stuart's τ_c, Goodman and Kruskal's γ,
 //     Somers' d in both directions (Estimate dispatches by Measure), S and
 //     the tie-corrected Var(S). KendallTauB is the shortcut.

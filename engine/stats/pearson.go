@@ -30,7 +30,15 @@ func Pearson(x, y []float64) float64 {
 		return math.NaN()
 	}
 	x, y = rescaled(x), rescaled(y)
-	mx, my := mean(x), mean(y)
+	return pearsonCentred(x, y, mean(x), mean(y))
+}
+
+// pearsonCentred is Pearson's r of x and y given their means as mean
+// returns them, for columns that are neither constant nor in need of
+// rescaling: the sums of products about the means in one pass, in index
+// order.
+func pearsonCentred(x, y []float64, mx, my float64) float64 {
+	y = y[:len(x)]
 	var sxx, syy, sxy float64
 	for i := range x {
 		dx, dy := x[i]-mx, y[i]-my
@@ -51,6 +59,10 @@ func Pearson(x, y []float64) float64 {
 // SpearmanRho returns Spearman's rank correlation ρ of x and y: Pearson's r
 // of Rank(x, rule) and Rank(y, rule). With ties this is the exact value; the
 // shortcut 1 − 6Σd²/(n(n²−1)) holds only without ties and is never used.
+// For n ≥ 2¹⁶ the two columns are ranked concurrently (and the means of the
+// ranks found there); the result does not depend on it. The result is bit
+// for bit Pearson(Rank(x, rule), Rank(y, rule)), with the same summation
+// order.
 //
 // It returns NaN when n < 2 or when x or y is constant. It panics when x and
 // y differ in length, contain NaN, or rule is unknown.
@@ -59,7 +71,60 @@ func Pearson(x, y []float64) float64 {
 // between two things, American Journal of Psychology 15(1), 72–101.
 func SpearmanRho(x, y []float64, rule TieRule) float64 {
 	mustMatch(x, y)
-	return Pearson(Rank(x, rule), Rank(y, rule))
+	checkRule(rule)
+	var rx, ry rankMoments
+	both(parallel(len(x)),
+		func() { rx = rankWithMean(x, rule) },
+		func() { ry = rankWithMean(y, rule) })
+	if len(x) < 2 || rx.constant || ry.constant {
+		return math.NaN()
+	}
+	return pearsonCentred(rx.ranks, ry.ranks, rx.mean, ry.mean)
+}
+
+// rankMoments is what Pearson needs to know of a column of ranks.
+type rankMoments struct {
+	ranks    []float64
+	mean     float64 // mean(ranks), bit for bit
+	constant bool    // every rank equal
+}
+
+// rankWithMean ranks x and finds what Pearson(rx, ·) would find of the
+// ranks rx, bit for bit, with less work:
+//
+//   - rx is constant only when x has one distinct value and the rule is not
+//     TieFirst (whose ranks are 1..n);
+//   - rx lies in [1, n], so rescaled leaves it as it is;
+//   - midranks (TieAverage) and TieFirst ranks sum to n(n+1)/2 in any
+//     order, exactly while n(n+1)/2 < 2⁵¹: every partial sum is a multiple
+//     of ½ that float64 holds exactly. So mean's sum is exact, its quotient
+//     is (n+1)/2 exactly, and its correction, a sum of exact differences, is
+//     0: mean returns (n+1)/2. Other rules, or larger n, take mean's two
+//     passes.
+func rankWithMean(x []float64, rule TieRule) rankMoments {
+	rk := RankTies(x, rule)
+	n := len(x)
+	// TieFirst ranks are 1..n, never constant for n ≥ 2; under the other
+	// rules tied values share a rank.
+	m := rankMoments{ranks: rk.Ranks, constant: rk.Ties.Distinct <= 1 && rule != TieFirst}
+	if n < 2 || m.constant {
+		return m
+	}
+	if (rule == TieAverage || rule == TieFirst) && n < 1<<26 { // n(n+1)/2 < 2⁵¹
+		m.mean = float64(n+1) / 2
+	} else {
+		m.mean = mean(rk.Ranks)
+	}
+	return m
+}
+
+// SpearmanRanks returns Spearman's ρ from ranks already computed, such as
+// RankTies(x, rule).Ranks and RankTies(y, rule).Ranks: Pearson's r of rx and
+// ry, bit for bit what SpearmanRho returns for the columns they rank. It
+// returns NaN when n < 2 or when rx or ry is constant, and panics when they
+// differ in length.
+func SpearmanRanks(rx, ry []float64) float64 {
+	return Pearson(rx, ry)
 }
 
 // mean returns the arithmetic mean of x (len(x) > 0), corrected by the mean
