@@ -13,10 +13,24 @@
 // # Hashes
 //
 // [Table.SHA256] is the hash of the bytes that were parsed. A CSV or TSV file
-// is hashed as it streams through the parser. A Parquet file is read out of
-// order, so it is hashed through the handle that parses it, before and after
-// parsing; if the two hashes differ, Read fails with an error saying that
-// the file changed while it was being read.
+// is read once, in blocks that are hashed as they are read and then parsed.
+// A Parquet file is read out of order, so it is hashed through the handle
+// that parses it, before and after parsing; if the two hashes differ, Read
+// fails with an error saying that the file changed while it was being read.
+//
+// # Speed and memory
+//
+// Read uses every core (GOMAXPROCS) and gives the same result whatever
+// their number. A CSV or TSV file is cut into chunks of whole records,
+// which are parsed in parallel by a tokenizer of this package (the rules of
+// encoding/csv, numbers by strconv.ParseFloat) and appended in file order.
+// A Parquet file is read by leaf column and row group in parallel, through
+// Arrow's Parquet reader, straight into the columns. Only the requested
+// columns are converted and kept; besides them, a read holds a few blocks
+// or batches per core, and leaves garbage for the collector (Parquet pages).
+// Reading two float columns of 10⁷ rows (160 MB as float64) peaked at about
+// 200 MiB of heap from CSV and 260 MiB from Parquet when measured
+// (BenchmarkReadCSV and BenchmarkReadParquet report it).
 //
 // # Column kinds
 //

@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/csv"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -17,7 +18,12 @@ import (
 // rows, and every cell must be what the value rules say: NaN for a missing
 // token or NaN, else strconv.ParseFloat of the trimmed cell for the first
 // column (read as Numeric), and the text itself for the others (Label).
+// Read must also give the same table, or the same error, as the Arrow-based
+// reader it replaced, with its default block size and with blocks of a few
+// bytes, and so must a read of the same bytes as TSV.
 func FuzzReadCSV(f *testing.F) {
+	defer func(n, o int) { textBlock = n; oracleBatchRows = o }(textBlock, oracleBatchRows)
+	oracleBatchRows = 3
 	for _, name := range []string{"orchard_harvest.csv", "school_survey.csv", "header_only.csv", "sensors.tsv"} {
 		b, err := os.ReadFile(filepath.Join("testdata", name))
 		if err != nil {
@@ -43,25 +49,16 @@ func FuzzReadCSV(f *testing.F) {
 			}
 			return
 		}
-		// Request each column named once in the header: the first as
-		// Numeric, the rest as Label.
-		count := map[string]int{}
-		for _, h := range header {
-			count[h]++
-		}
-		var cols []ColumnSpec
-		var at []int
-		for i, h := range header {
-			if count[h] != 1 {
-				continue
+		cols, at := fuzzColumns(header)
+		for _, block := range []int{1 << 21, 1 + len(data)%5} {
+			textBlock = block
+			sameRead(t, Spec{Path: p, Format: CSV, Missing: missing, Columns: cols}, fmt.Sprintf("CSV, block %d, %q", block, data))
+			if th, err := Header(p, TSV); err == nil {
+				tc, _ := fuzzColumns(th)
+				sameRead(t, Spec{Path: p, Format: TSV, Missing: missing, Columns: tc}, fmt.Sprintf("TSV, block %d, %q", block, data))
 			}
-			k := Label
-			if len(cols) == 0 {
-				k = Numeric
-			}
-			cols = append(cols, ColumnSpec{Name: h, Kind: k})
-			at = append(at, i)
 		}
+		textBlock = 1 << 21
 		tab, err := Read(context.Background(), Spec{Path: p, Format: CSV, Missing: missing, Columns: cols})
 
 		r := csv.NewReader(bytes.NewReader(bytes.TrimPrefix(data, utf8BOM)))
@@ -107,6 +104,27 @@ func FuzzReadCSV(f *testing.F) {
 			}
 		}
 	})
+}
+
+// fuzzColumns requests each column named once in the header: the first as
+// Numeric, the rest as Label. at gives each one's field index.
+func fuzzColumns(header []string) (cols []ColumnSpec, at []int) {
+	count := map[string]int{}
+	for _, h := range header {
+		count[h]++
+	}
+	for i, h := range header {
+		if count[h] != 1 {
+			continue
+		}
+		k := Label
+		if len(cols) == 0 {
+			k = Numeric
+		}
+		cols = append(cols, ColumnSpec{Name: h, Kind: k})
+		at = append(at, i)
+	}
+	return cols, at
 }
 
 // FuzzReadNumber checks the numeric cell rules against strconv.ParseFloat.

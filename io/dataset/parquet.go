@@ -7,7 +7,10 @@ import (
 	"io"
 	"math"
 	"os"
+	"runtime"
 	"strconv"
+	"sync"
+	"sync/atomic"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -16,6 +19,10 @@ import (
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
+
+// batchRows is the number of rows per Arrow record batch when reading
+// Parquet. Tests lower it to cross batch boundaries.
+var batchRows = 1 << 16
 
 // openParquet reads the footer of a Parquet file from r and gives an Arrow
 // view of its schema. The caller closes r.
@@ -132,8 +139,8 @@ func checkParquetType(path string, cs ColumnSpec, sf pqarrow.SchemaField) error 
 // have been read and before the file is hashed the second time.
 var testHookParquetRead func()
 
-// readParquet reads the requested columns of a Parquet file in record
-// batches, projecting on the requested columns.
+// readParquet reads the requested columns of a Parquet file, and only
+// those, with parseParquet.
 //
 // A Parquet file is read out of order (the footer first, then each column
 // chunk), so its bytes cannot be hashed as they stream past as a text
@@ -154,7 +161,7 @@ func readParquet(ctx context.Context, spec Spec) (*Table, error) {
 	if err != nil {
 		return nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
 	}
-	t, err := parseParquet(ctx, spec, f)
+	t, err := parseParquet(ctx, spec, f, size)
 	if err != nil {
 		return nil, err
 	}
@@ -178,9 +185,42 @@ func hashAt(f *os.File) (string, int64, error) {
 	return hashStream(io.NewSectionReader(f, 0, math.MaxInt64))
 }
 
-// parseParquet reads the requested columns of the Parquet file behind r.
-func parseParquet(ctx context.Context, spec Spec, r parquet.ReaderAtSeeker) (*Table, error) {
-	pf, fr, err := openParquet(spec.Path, r)
+// parseParquet reads the requested columns of the Parquet file f, size
+// bytes long, in parallel: the work is cut into items, each one leaf column
+// of one row group, and GOMAXPROCS workers, each with its own reader over
+// f, write the items' values straight into the preallocated columns at the
+// row group's offset, so the result does not depend on the number of
+// workers. A leaf that is also read as a Label column is one item over all
+// row groups in order, so that its labels are interned as they come.
+//
+// A float64 or float32 leaf (Parquet DOUBLE or FLOAT) is decoded by
+// Parquet's column chunk reader directly into the column, in batches of
+// batchRows values; other leaves go through pqarrow record batches of
+// batchRows rows and the sinks. On the 10⁷-row benchmark file the direct
+// path took 1.5× less CPU than record batches and allocated 2.3× less
+// (BenchmarkReadParquet and BenchmarkReadParquetRecordBatches).
+//
+// Memory: the requested columns, plus per worker one batch and the column
+// chunk being read, streamed in buffers of 1 MiB rather than read whole.
+//
+// The first problem in row order is reported, and within a row the first
+// requested column's.
+func parseParquet(ctx context.Context, spec Spec, f *os.File, size int64) (*Table, error) {
+	props := parquet.NewReaderProperties(memory.DefaultAllocator)
+	props.BufferedStreamEnabled = true
+	props.BufferSize = 1 << 20
+	open := func(opts ...file.ReadOption) (*file.Reader, *pqarrow.FileReader, error) {
+		pf, err := file.NewParquetReader(io.NewSectionReader(f, 0, size), append(opts, file.WithReadProps(props))...)
+		if err != nil {
+			return nil, nil, fmt.Errorf("read dataset %q: not a readable Parquet file: %w", spec.Path, err)
+		}
+		fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(batchRows)}, memory.DefaultAllocator)
+		if err != nil {
+			return nil, nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
+		}
+		return pf, fr, nil
+	}
+	pf, fr, err := open()
 	if err != nil {
 		return nil, err
 	}
@@ -188,78 +228,314 @@ func parseParquet(ctx context.Context, spec Spec, r parquet.ReaderAtSeeker) (*Ta
 	if err != nil {
 		return nil, err
 	}
-	// A column requested with two kinds is read from the file once: leaves
-	// lists each distinct leaf once, and pos[k] is the record column that
-	// holds requested column k.
-	var leaves []int
-	pos := make([]int, len(idx))
-	at := make(map[int]int, len(idx))
+	nrows := int(pf.NumRows())
+	t := &Table{Path: spec.Path, Rows: nrows, Columns: make([]Column, len(spec.Columns))}
+	// A column requested with two kinds is read from the file once: each
+	// distinct leaf is one entry of leaves, with the requested columns it
+	// feeds.
+	var leaves []*pqLeaf
+	byCol := make(map[int]*pqLeaf, len(idx))
 	for k, i := range idx {
+		cs := spec.Columns[k]
 		sf := fr.Manifest.Fields[i]
-		if err := checkParquetType(spec.Path, spec.Columns[k], sf); err != nil {
+		if err := checkParquetType(spec.Path, cs, sf); err != nil {
 			return nil, err
 		}
-		p, ok := at[sf.ColIndex]
-		if !ok {
-			p = len(leaves)
-			at[sf.ColIndex] = p
-			leaves = append(leaves, sf.ColIndex)
+		l := byCol[sf.ColIndex]
+		if l == nil {
+			d := pf.MetaData().Schema.Column(sf.ColIndex)
+			l = &pqLeaf{col: sf.ColIndex, maxDef: d.MaxDefinitionLevel()}
+			if parquetDirect && d.MaxRepetitionLevel() == 0 && d.MaxDefinitionLevel() <= 1 {
+				switch {
+				case d.PhysicalType() == parquet.Types.Double && sf.Field.Type.ID() == arrow.FLOAT64,
+					d.PhysicalType() == parquet.Types.Float && sf.Field.Type.ID() == arrow.FLOAT32:
+					l.direct = true
+				}
+			}
+			byCol[sf.ColIndex] = l
+			leaves = append(leaves, l)
 		}
-		pos[k] = p
-	}
-
-	nrows := int(pf.NumRows())
-	t := &Table{Path: spec.Path, Columns: make([]Column, len(spec.Columns))}
-	sinks := make([]*sink, len(spec.Columns))
-	for i, c := range spec.Columns {
-		t.Columns[i] = Column{Name: c.Name, Kind: c.Kind}
-		sinks[i] = newSink(&t.Columns[i], c, nil)
-		sinks[i].grow(nrows)
+		l.cols = append(l.cols, k)
+		if cs.Kind == Label {
+			l.labels = true
+		}
+		c := Column{Name: cs.Name, Kind: cs.Kind}
+		if cs.Kind == Label {
+			c.Labels = make([]string, 0, nrows)
+			c.Missing = make([]bool, 0, nrows)
+		} else {
+			c.Values = make([]float64, nrows)
+		}
+		t.Columns[k] = c
 	}
 	if len(spec.Columns) == 0 || nrows == 0 {
-		t.Rows = nrows
 		return t, nil
 	}
 
-	rr, err := fr.GetRecordReader(ctx, leaves, nil)
-	if err != nil {
+	// Row group r holds rows starts[r] to starts[r+1].
+	starts := make([]int, pf.NumRowGroups()+1)
+	for r := range pf.NumRowGroups() {
+		starts[r+1] = starts[r] + int(pf.RowGroup(r).NumRows())
+	}
+	if starts[len(starts)-1] != nrows {
+		return nil, fmt.Errorf("read dataset %q: its row groups hold %d rows but the file declares %d", spec.Path, starts[len(starts)-1], nrows)
+	}
+	var items []pqItem
+	for _, l := range leaves {
+		if l.labels {
+			items = append(items, pqItem{leaf: l, rg: -1, start: 0, end: nrows})
+		}
+	}
+	for r := range pf.NumRowGroups() {
+		for _, l := range leaves {
+			if !l.labels && starts[r+1] > starts[r] {
+				items = append(items, pqItem{leaf: l, rg: r, start: starts[r], end: starts[r+1]})
+			}
+		}
+	}
+
+	run := &pqRun{spec: spec, t: t, items: items, errs: make([]*pqError, len(items))}
+	run.stopRow.Store(math.MaxInt64)
+	var wg sync.WaitGroup
+	var next atomic.Int64
+	workers := min(runtime.GOMAXPROCS(0), len(items))
+	openErrs := make([]error, workers)
+	for w := range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			pf, fr, err := open(file.WithMetadata(pf.MetaData()))
+			if err != nil {
+				openErrs[w] = err
+				return
+			}
+			pw := &pqWorker{run: run, pf: pf, fr: fr}
+			for {
+				i := int(next.Add(1)) - 1
+				if i >= len(items) {
+					return
+				}
+				run.errs[i] = pw.read(ctx, &items[i])
+			}
+		}()
+	}
+	wg.Wait()
+	if err := errors.Join(openErrs...); err != nil {
+		return nil, err
+	}
+	if err := ctx.Err(); err != nil {
 		return nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
 	}
+	var first *pqError
+	for _, e := range run.errs {
+		if e != nil && (first == nil || e.row < first.row || (e.row == first.row && e.order < first.order)) {
+			first = e
+		}
+	}
+	if first != nil {
+		return nil, first.err
+	}
+	return t, nil
+}
+
+// parquetDirect enables the direct decoding of float leaves; a benchmark
+// turns it off to measure what it gains.
+var parquetDirect = true
+
+// pqLeaf is one leaf column of a Parquet file that feeds requested columns.
+type pqLeaf struct {
+	col    int   // leaf index
+	cols   []int // the requested columns it feeds
+	labels bool  // one of them is a Label column
+	direct bool  // a flat float64 or float32 leaf, decoded into the column
+	maxDef int16
+}
+
+// pqItem is one unit of Parquet work: a leaf over one row group (rg), or
+// over all row groups (rg -1), which hold rows start to end.
+type pqItem struct {
+	leaf       *pqLeaf
+	rg         int
+	start, end int
+}
+
+// pqError is an item's problem, placed for choosing the first one: row is
+// the 1-based row of a cell, or the row after the last one read for other
+// failures; order breaks ties between columns.
+type pqError struct {
+	row, order int
+	err        error
+}
+
+// pqRun is the shared state of one parallel Parquet read.
+type pqRun struct {
+	spec    Spec
+	t       *Table
+	items   []pqItem
+	errs    []*pqError
+	stopRow atomic.Int64 // the smallest row of a problem found so far
+}
+
+// pqWorker reads items with its own readers.
+type pqWorker struct {
+	run  *pqRun
+	pf   *file.Reader
+	fr   *pqarrow.FileReader
+	defs []int16
+	f32  []float32
+}
+
+// failed records a problem at row, keeping stopRow the smallest such row.
+func (r *pqRun) failed(row, order int, err error) *pqError {
+	for {
+		cur := r.stopRow.Load()
+		if int64(row) >= cur || r.stopRow.CompareAndSwap(cur, int64(row)) {
+			break
+		}
+	}
+	return &pqError{row: row, order: order, err: err}
+}
+
+// read reads one item, unless a problem was already found in an earlier
+// row.
+func (w *pqWorker) read(ctx context.Context, it *pqItem) *pqError {
+	r := w.run
+	if int64(it.start) >= r.stopRow.Load() {
+		return nil
+	}
+	if it.leaf.direct {
+		return w.readDirect(ctx, it)
+	}
+	// Sinks over windows of the columns: a Numeric or Ordinal column's
+	// values for rows start to end (filled by appending within capacity),
+	// or the Label column itself.
+	sinks := make([]*sink, len(it.leaf.cols))
+	windows := make([]Column, len(it.leaf.cols))
+	for j, k := range it.leaf.cols {
+		col := &r.t.Columns[k]
+		if col.Kind == Label {
+			sinks[j] = newSink(col, r.spec.Columns[k], nil)
+			continue
+		}
+		windows[j] = Column{Name: col.Name, Kind: col.Kind, Values: col.Values[it.start:it.start:it.end]}
+		sinks[j] = newSink(&windows[j], r.spec.Columns[k], nil)
+	}
+	var rgs []int
+	if it.rg >= 0 {
+		rgs = []int{it.rg}
+	}
+	rr, err := w.fr.GetRecordReader(ctx, []int{it.leaf.col}, rgs)
+	if err != nil {
+		return r.failed(it.start+1, len(r.spec.Columns), fmt.Errorf("read dataset %q: %w", r.spec.Path, err))
+	}
 	defer rr.Release()
-	rows := 0
+	rows := it.start
 	for rr.Next() {
-		if err := ctx.Err(); err != nil {
-			return nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
+		if ctx.Err() != nil || int64(rows) >= r.stopRow.Load() {
+			return nil
 		}
 		rec := rr.RecordBatch()
-		// A bad cell in an earlier column wins over one in a later
-		// column only within the same row: keep the smallest row.
-		var first *CellError
-		for k, s := range sinks {
-			if i, p, v := appendArrow(s, rec.Column(pos[k])); p != nil {
+		var first *pqError
+		for j, s := range sinks {
+			if i, p, v := appendArrow(s, rec.Column(0)); p != nil {
+				k := it.leaf.cols[j]
 				row := rows + i + 1
-				if first == nil || row < first.Row {
-					first = &CellError{Path: spec.Path, Row: row, Column: spec.Columns[k].Name, Value: v, Reason: p.reason, Hint: p.hint}
+				if first == nil || row < first.row || (row == first.row && k < first.order) {
+					first = &pqError{row: row, order: k, err: &CellError{Path: r.spec.Path, Row: row, Column: r.spec.Columns[k].Name, Value: v, Reason: p.reason, Hint: p.hint}}
 				}
 			}
 		}
 		if first != nil {
-			return nil, first
+			return r.failed(first.row, first.order, first.err)
 		}
 		rows += int(rec.NumRows())
 	}
 	// Older Arrow releases reported a normal end as io.EOF.
 	if err := rr.Err(); err != nil && !errors.Is(err, io.EOF) {
-		return nil, fmt.Errorf("read dataset %q: after row %d: %w", spec.Path, rows, err)
+		return r.failed(rows+1, len(r.spec.Columns), fmt.Errorf("read dataset %q: after row %d: %w", r.spec.Path, rows, err))
 	}
-	if err := ctx.Err(); err != nil {
-		return nil, fmt.Errorf("read dataset %q: %w", spec.Path, err)
+	if ctx.Err() != nil {
+		return nil
 	}
-	if rows != nrows {
-		return nil, fmt.Errorf("read dataset %q: read %d rows but the file declares %d", spec.Path, rows, nrows)
+	for j, k := range it.leaf.cols {
+		got := len(windows[j].Values)
+		if r.t.Columns[k].Kind == Label {
+			got = len(r.t.Columns[k].Labels)
+		}
+		if got != it.end-it.start {
+			return r.failed(it.start+1, len(r.spec.Columns), fmt.Errorf("read dataset %q: read %d rows but the file declares %d", r.spec.Path, rows-it.start, it.end-it.start))
+		}
 	}
-	t.Rows = rows
-	return t, nil
+	return nil
+}
+
+// readDirect decodes a flat float64 or float32 leaf of one row group into
+// its column (a float leaf feeds exactly one column: it can be read only
+// as Numeric), nulls as NaN.
+func (w *pqWorker) readDirect(ctx context.Context, it *pqItem) *pqError {
+	r := w.run
+	k := it.leaf.cols[0]
+	dst := r.t.Columns[k].Values[it.start:it.end]
+	fail := func(row int, err error) *pqError {
+		return r.failed(row+1, len(r.spec.Columns), fmt.Errorf("read dataset %q: after row %d: %w", r.spec.Path, row, err))
+	}
+	cr, err := w.pf.RowGroup(it.rg).Column(it.leaf.col)
+	if err != nil {
+		return fail(it.start, err)
+	}
+	maxDef := it.leaf.maxDef
+	if maxDef > 0 && len(w.defs) < batchRows {
+		w.defs = make([]int16, batchRows)
+	}
+	for done := 0; done < len(dst); {
+		if ctx.Err() != nil {
+			return nil
+		}
+		n := min(len(dst)-done, batchRows)
+		out := dst[done : done+n]
+		var defs []int16
+		if maxDef > 0 {
+			defs = w.defs[:n]
+		}
+		var total int64
+		var vals int
+		switch c := cr.(type) {
+		case *file.Float64ColumnChunkReader:
+			total, vals, err = c.ReadBatch(int64(n), out, defs, nil)
+		case *file.Float32ColumnChunkReader:
+			if len(w.f32) < n {
+				w.f32 = make([]float32, batchRows)
+			}
+			total, vals, err = c.ReadBatch(int64(n), w.f32[:n], defs, nil)
+			for i, v := range w.f32[:vals] {
+				out[i] = float64(v)
+			}
+		default:
+			panic(fmt.Sprintf("dataset: unexpected column reader %T for a float leaf", cr))
+		}
+		if err == nil && total == 0 {
+			err = fmt.Errorf("the row group ends %d rows early", len(dst)-done)
+		}
+		if err != nil {
+			return fail(it.start+done, err)
+		}
+		if vals < int(total) { // spread the values over the non-null rows, from the end
+			j := vals - 1
+			for i := int(total) - 1; i >= 0; i-- {
+				if defs[i] == maxDef {
+					out[i] = out[j]
+					j--
+				} else {
+					out[i] = nan
+				}
+			}
+		}
+		done += int(total)
+	}
+	if cr.HasNext() {
+		return fail(it.end, errors.New("the row group holds more rows than it declares"))
+	}
+	return nil
 }
 
 // appendArrow appends an Arrow array's values to a sink. On a value that

@@ -13,7 +13,9 @@ import (
 
 // Read reads the columns that spec asks for from spec.Path, following the
 // value rules in the package documentation, and hashes the file's bytes.
-// Cancelling ctx stops the read between record batches.
+// Cancelling ctx stops the read between blocks of text or batches of
+// Parquet rows. Read works on up to GOMAXPROCS goroutines; its result does
+// not depend on their number.
 //
 // A cell that cannot be read is reported as a *CellError, a requested column
 // that the file lacks as a *MissingColumnError, and a requested column that

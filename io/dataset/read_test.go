@@ -219,11 +219,11 @@ func TestReadProjection(t *testing.T) {
 	}
 }
 
-// Files several batches long, with the batch size lowered, check that rows
-// are counted across batches and that the capacity guess is harmless.
+// Files many blocks long, with the block size lowered, check that rows are
+// counted across chunks and that the capacity guess is harmless.
 func TestReadAcrossBatches(t *testing.T) {
-	defer func(n int) { batchRows = n }(batchRows)
-	batchRows = 4
+	defer func(n int) { textBlock = n }(textBlock)
+	textBlock = 16
 	var b strings.Builder
 	b.WriteString("x,g\n")
 	for i := range 23 {

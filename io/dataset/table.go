@@ -118,8 +118,10 @@ func checkSpec(spec Spec) error {
 	return nil
 }
 
-// sink receives one column's cells as text and stores them by kind. It is
-// shared by the CSV reader and by Parquet text columns.
+// sink receives one column's values, from Arrow arrays or as text, and
+// stores them by kind. The Parquet reader uses it for every column read
+// through record batches; the CSV reader applies the same value rules
+// through textParser.cell.
 type sink struct {
 	col     *Column
 	spec    ColumnSpec
@@ -140,33 +142,6 @@ func newSink(col *Column, cs ColumnSpec, missing map[string]bool) *sink {
 		s.intern = make(map[string]string)
 	}
 	return s
-}
-
-// grow makes room for n more rows.
-func (s *sink) grow(n int) {
-	c := s.col
-	if c.Kind == Label {
-		if cap(c.Labels)-len(c.Labels) < n {
-			c.Labels = growTo(c.Labels, len(c.Labels)+n)
-			c.Missing = growTo(c.Missing, len(c.Labels)+n)
-		}
-		return
-	}
-	if cap(c.Values)-len(c.Values) < n {
-		c.Values = growTo(c.Values, len(c.Values)+n)
-	}
-}
-
-// growTo returns s with capacity at least n, doubling to keep appends
-// amortised.
-func growTo[T any](s []T, n int) []T {
-	if cap(s) >= n {
-		return s
-	}
-	nc := max(n, 2*cap(s))
-	t := make([]T, len(s), nc)
-	copy(t, s)
-	return t
 }
 
 // add stores one cell; a non-nil cellProblem says why it cannot be read.
