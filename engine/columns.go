@@ -64,7 +64,26 @@ type column struct {
 
 	// arrangements is n! over the product of t! for the column's tie
 	// groups: stats.Arrangements of a pair is the smaller of its columns'.
+	// It costs a sort, so it is counted on first use (arrangementCount).
+	arrOnce      sync.Once
 	arrangements float64
+}
+
+// arrangementCount returns the column's count of distinct orders, counting
+// it once. A column longer than stats.MaxEnumeration has more orders than
+// that (at least n unless it is constant), which is all a caller asks.
+func (c *column) arrangementCount() float64 {
+	c.arrOnce.Do(func() {
+		switch {
+		case len(c.values) == 0:
+			c.arrangements = math.Inf(1)
+		case len(c.values) > stats.MaxEnumeration && !c.constant:
+			c.arrangements = math.Inf(1)
+		default:
+			c.arrangements = stats.Arrangements(c.values, c.values)
+		}
+	})
+	return c.arrangements
 }
 
 // monotoneRows is the most rows the monotonicity check reads: above it, an
@@ -192,7 +211,7 @@ func (src *cellSource) sample(pair recipe.Pair) (sample, *column, *column) {
 func (c *column) prepare(rule stats.TieRule) *column {
 	c.once.Do(func() {
 		if len(c.values) == 0 {
-			c.share, c.arrangements = math.NaN(), math.Inf(1)
+			c.share = math.NaN()
 			return
 		}
 		// One radix pass gives the ranks and the tie groups.
@@ -204,7 +223,6 @@ func (c *column) prepare(rule stats.TieRule) *column {
 		sub := monotoneSubsample(c.values)
 		c.mono = stats.PrepareMonotone(sub)
 		c.mid = stats.Rank(sub, stats.TieAverage)
-		c.arrangements = stats.Arrangements(c.values, c.values)
 		c.constant, c.constValue = constant(c.values)
 	})
 	return c

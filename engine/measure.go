@@ -116,7 +116,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 	// enumerate: from the shared columns' counts when there are any.
 	arrangements := func() float64 {
 		if c.px != nil {
-			return min(c.px.arrangements, c.py.arrangements)
+			return min(c.px.arrangementCount(), c.py.arrangementCount())
 		}
 		return stats.Arrangements(s.x, s.y)
 	}
