@@ -238,18 +238,22 @@ func cpuTime() time.Duration {
 	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
-// BenchmarkReadCSV reads the two columns with Read (hash included).
-func BenchmarkReadCSV(b *testing.B) {
+// benchRead measures read on the benchmark file of each size that file
+// writes, read as format: the shape every whole-file reader benchmark shares.
+func benchRead(b *testing.B, file func(*testing.B, int) string, format Format, read func(context.Context, Spec) (*Table, error)) {
 	benchSizesRun(b, func(b *testing.B, n int) {
-		spec := Spec{Path: benchCSV(b, n), Format: CSV, Columns: twoColumns}
+		spec := Spec{Path: file(b, n), Format: format, Columns: twoColumns}
 		measure(b, n, func() {
-			tab, err := Read(context.Background(), spec)
+			tab, err := read(context.Background(), spec)
 			if err != nil || tab.Rows != n {
 				b.Fatal(err)
 			}
 		})
 	})
 }
+
+// BenchmarkReadCSV reads the two columns with Read (hash included).
+func BenchmarkReadCSV(b *testing.B) { benchRead(b, benchCSV, CSV, Read) }
 
 // BenchmarkReadCSVBaseline reads the same file with encoding/csv and
 // strconv.ParseFloat on one core, without hashing: the plainest reader.
@@ -365,32 +369,14 @@ func BenchmarkReadCSVArrow(b *testing.B) {
 
 // BenchmarkReadParquet reads two float64 columns of three with Read (both
 // hashes included).
-func BenchmarkReadParquet(b *testing.B) {
-	benchSizesRun(b, func(b *testing.B, n int) {
-		spec := Spec{Path: benchParquet(b, n), Format: Parquet, Columns: twoColumns}
-		measure(b, n, func() {
-			tab, err := Read(context.Background(), spec)
-			if err != nil || tab.Rows != n {
-				b.Fatal(err)
-			}
-		})
-	})
-}
+func BenchmarkReadParquet(b *testing.B) { benchRead(b, benchParquet, Parquet, Read) }
 
 // BenchmarkReadParquetBaseline reads the same file with the sequential
 // reader that parseParquet replaced (one pqarrow record reader over both
 // columns, batches of 64Ki rows, appended to the columns), hashing the file
 // once rather than twice.
 func BenchmarkReadParquetBaseline(b *testing.B) {
-	benchSizesRun(b, func(b *testing.B, n int) {
-		spec := Spec{Path: benchParquet(b, n), Format: Parquet, Columns: twoColumns}
-		measure(b, n, func() {
-			tab, err := readParquetOracle(context.Background(), spec)
-			if err != nil || tab.Rows != n {
-				b.Fatal(err)
-			}
-		})
-	})
+	benchRead(b, benchParquet, Parquet, readParquetOracle)
 }
 
 // BenchmarkReadParquetRecordBatches is BenchmarkReadParquet with the direct
