@@ -17,13 +17,14 @@ func encodeCSV(w *bufio.Writer, t *Table, digits int) error {
 		return err
 	}
 	record := make([]string, len(t.Columns))
-	for _, row := range t.Rows {
+	err := t.each(func(_ int, row []Cell) error {
 		for c, cell := range row {
 			record[c] = csvCell(cell, digits)
 		}
-		if err := cw.Write(record); err != nil {
-			return err
-		}
+		return cw.Write(record)
+	})
+	if err != nil {
+		return err
 	}
 	cw.Flush()
 	return cw.Error()

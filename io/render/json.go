@@ -19,17 +19,18 @@ import (
 // an array of its two bounds, or null when either bound is NaN (an infinite
 // bound alone is null inside the array). A list is an array of strings, []
 // when empty. Title and Notes are not written.
-func encodeJSON(w *bufio.Writer, t *Table) {
-	if len(t.Rows) == 0 {
+func encodeJSON(w *bufio.Writer, t *Table) error {
+	rows := t.Len()
+	if rows == 0 {
 		w.WriteString("[]\n")
-		return
+		return nil
 	}
 	keys := make([]string, len(t.Columns))
 	for c, name := range t.Columns {
 		keys[c] = jsonString(name)
 	}
 	w.WriteString("[\n")
-	for r, row := range t.Rows {
+	err := t.each(func(r int, row []Cell) error {
 		if len(row) == 0 {
 			w.WriteString("  {}")
 		} else {
@@ -46,12 +47,17 @@ func encodeJSON(w *bufio.Writer, t *Table) {
 			}
 			w.WriteString("  }")
 		}
-		if r < len(t.Rows)-1 {
+		if r < rows-1 {
 			w.WriteString(",")
 		}
 		w.WriteString("\n")
+		return nil
+	})
+	if err != nil {
+		return err
 	}
 	w.WriteString("]\n")
+	return nil
 }
 
 // writeJSONCell writes the JSON value of one cell at object-member depth.
@@ -62,7 +68,7 @@ func writeJSONCell(w *bufio.Writer, c Cell) {
 			w.WriteString("null")
 			return
 		}
-		w.WriteString(jsonString(c.text))
+		writeJSONString(w, c.text)
 	case KindInt:
 		w.WriteString(itoa(c.i))
 	case KindReal, KindProb:
@@ -85,7 +91,7 @@ func writeJSONCell(w *bufio.Writer, c Cell) {
 		w.WriteString("[\n")
 		for i, s := range c.items {
 			w.WriteString("      ")
-			w.WriteString(jsonString(s))
+			writeJSONString(w, s)
 			if i < len(c.items)-1 {
 				w.WriteString(",")
 			}
@@ -103,14 +109,46 @@ func writeJSONReal(w *bufio.Writer, f float64) {
 	if math.IsNaN(f) || math.IsInf(f, 0) {
 		w.WriteString("null")
 	} else {
-		w.WriteString(jsonNumber(f))
+		var buf [32]byte
+		w.Write(appendJSONNumber(buf[:0], f))
 	}
+}
+
+// writeJSONString writes jsonString(s) without making the string.
+func writeJSONString(w *bufio.Writer, s string) {
+	if plainJSON(s) {
+		w.WriteByte('"')
+		w.WriteString(s)
+		w.WriteByte('"')
+		return
+	}
+	w.WriteString(encodedJSONString(s))
 }
 
 // jsonString returns s as a JSON string literal. Unlike json.Marshal it
 // leaves <, > and & unescaped, since the output is a data file, not HTML;
 // invalid UTF-8 becomes U+FFFD.
 func jsonString(s string) string {
+	if plainJSON(s) {
+		return `"` + s + `"`
+	}
+	return encodedJSONString(s)
+}
+
+// plainJSON says whether s is printable ASCII without a quote or a
+// backslash, which JSON writes as it is between quotes. Large tables are
+// almost all such strings, and the encoder costs ~20× the scan.
+func plainJSON(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c < 0x20 || c >= 0x7f || c == '"' || c == '\\' {
+			return false
+		}
+	}
+	return true
+}
+
+// encodedJSONString is jsonString through encoding/json, for any string.
+func encodedJSONString(s string) string {
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetEscapeHTML(false)

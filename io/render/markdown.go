@@ -22,7 +22,7 @@ const mdProbDigits = 3
 // otherwise it is left-aligned. Cells are padded to the column's width,
 // counted in runes, so the raw file reads as a table too (characters that
 // take two terminal cells, such as CJK, will still look misaligned).
-func encodeMarkdown(w *bufio.Writer, t *Table, digits int) {
+func encodeMarkdown(w *bufio.Writer, t *Table, digits int) error {
 	if t.Title != "" {
 		w.WriteString(mdEscape(t.Title))
 		w.WriteString("\n\n")
@@ -35,10 +35,10 @@ func encodeMarkdown(w *bufio.Writer, t *Table, digits int) {
 	for c, name := range t.Columns {
 		header[c] = mdEscape(name)
 		width[c] = max(3, utf8.RuneCountInString(header[c])) // "---" is the shortest rule
-		right[c] = len(t.Rows) > 0
+		right[c] = t.Len() > 0
 	}
-	body := make([][]string, len(t.Rows))
-	for r, row := range t.Rows {
+	body := make([][]string, t.Len())
+	err := t.each(func(r int, row []Cell) error {
 		body[r] = make([]string, n)
 		for c, cell := range row {
 			s := mdCell(cell, digits)
@@ -48,6 +48,10 @@ func encodeMarkdown(w *bufio.Writer, t *Table, digits int) {
 				right[c] = false
 			}
 		}
+		return nil
+	})
+	if err != nil {
+		return err
 	}
 
 	writeRow := func(cells []string) {
@@ -88,6 +92,7 @@ func encodeMarkdown(w *bufio.Writer, t *Table, digits int) {
 			w.WriteString("\n")
 		}
 	}
+	return nil
 }
 
 // mdCell returns the text of one cell in Markdown.

@@ -55,20 +55,25 @@ func dropNegativeZero(s string) string {
 // as f exactly. It uses plain decimal notation for magnitudes in [1e-6, 1e21)
 // and exponent notation outside (as JavaScript and encoding/json do), and
 // writes negative zero as 0.
-func jsonNumber(f float64) string {
+func jsonNumber(f float64) string { return string(appendJSONNumber(nil, f)) }
+
+// appendJSONNumber appends jsonNumber(f) to b.
+func appendJSONNumber(b []byte, f float64) []byte {
 	if f == 0 {
-		return "0"
+		return append(b, '0')
 	}
 	abs := math.Abs(f)
 	if abs >= 1e-6 && abs < 1e21 {
-		return strconv.FormatFloat(f, 'f', -1, 64)
+		return strconv.AppendFloat(b, f, 'f', -1, 64)
 	}
-	s := strconv.FormatFloat(f, 'e', -1, 64)
+	start := len(b)
+	b = strconv.AppendFloat(b, f, 'e', -1, 64)
 	// Shorten a two-digit negative exponent: 1e-07 becomes 1e-7.
-	if n := len(s); n >= 4 && s[n-4] == 'e' && s[n-3] == '-' && s[n-2] == '0' {
-		s = s[:n-2] + s[n-1:]
+	if s := b[start:]; len(s) >= 4 && s[len(s)-4] == 'e' && s[len(s)-3] == '-' && s[len(s)-2] == '0' {
+		b[len(b)-2] = b[len(b)-1]
+		b = b[:len(b)-1]
 	}
-	return s
+	return b
 }
 
 // levelDigits is how many significant digits Percent keeps of 100·level.

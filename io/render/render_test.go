@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"flag"
+	"io"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -528,5 +529,103 @@ func TestParseFormat(t *testing.T) {
 	}
 	if got := Format(0).String(); got != "Format(0)" {
 		t.Errorf("Format(0).String() = %q", got)
+	}
+}
+
+// TestJSONStringFastPath checks the plain-ASCII shortcut of jsonString
+// against encoding/json on every single byte, on mixed strings and on
+// random ones.
+func TestJSONStringFastPath(t *testing.T) {
+	var cases []string
+	for b := range 256 {
+		cases = append(cases, string([]byte{byte(b)}), "a"+string([]byte{byte(b)})+"z")
+	}
+	cases = append(cases, "", "canopy shade (%)", `say "hi"`, `C:\data`, "tab\there", "é", "\u2028", "<b>&</b>", "\xff\xfe")
+	rng := rand.New(rand.NewPCG(7, 11))
+	for range 2000 {
+		b := make([]byte, rng.IntN(12))
+		for i := range b {
+			b[i] = byte(rng.IntN(256))
+		}
+		cases = append(cases, string(b))
+	}
+	for _, s := range cases {
+		if got, want := jsonString(s), encodedJSONString(s); got != want {
+			t.Errorf("jsonString(%q) = %s, encoding/json gives %s", s, got, want)
+		}
+	}
+}
+
+func FuzzJSONString(f *testing.F) {
+	for _, s := range []string{"", "x", `"`, "\\", "\x00", "é", "\u2028", "\xff"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		if got, want := jsonString(s), encodedJSONString(s); got != want {
+			t.Errorf("jsonString(%q) = %s, encoding/json gives %s", s, got, want)
+		}
+	})
+}
+
+// TestRowFunc checks that a table whose rows come from RowFunc encodes to
+// the same bytes as the same table held in Rows, in every format, and
+// that a bad row is reported with its number.
+func TestRowFunc(t *testing.T) {
+	for _, table := range []func() *Table{orchard, intervals} {
+		held := table()
+		lazy := table()
+		rows := lazy.Rows
+		lazy.Rows, lazy.NumRows = nil, len(rows)
+		lazy.RowFunc = func(i int, dst []Cell) []Cell { return append(dst, rows[i]...) }
+		for _, f := range []Format{Markdown, CSV, JSON} {
+			for _, digits := range []int{-1, 2} {
+				var want, got bytes.Buffer
+				if err := Encode(&want, held, f, digits); err != nil {
+					t.Fatal(err)
+				}
+				if err := Encode(&got, lazy, f, digits); err != nil {
+					t.Fatal(err)
+				}
+				if got.String() != want.String() {
+					t.Errorf("%s, %s, digits %d: RowFunc table gives\n%s\nRows table gives\n%s", held.Title, f, digits, got.String(), want.String())
+				}
+			}
+		}
+	}
+	bad := &Table{Columns: []string{"a", "b"}, NumRows: 3, RowFunc: func(i int, dst []Cell) []Cell {
+		if i == 2 {
+			return append(dst, Text("x"))
+		}
+		return append(dst, Text("x"), Int(1))
+	}}
+	for _, f := range []Format{Markdown, CSV, JSON} {
+		err := Encode(io.Discard, bad, f, -1)
+		if err == nil || !strings.Contains(err.Error(), "row 3 has 1 cells for 2 columns") {
+			t.Errorf("%s: Encode of a short row = %v, want the row named", f, err)
+		}
+	}
+}
+
+// TestJSONNumberMatchesEncodingJSON checks jsonNumber against
+// encoding/json's float formatting (the same rules: shortest round trip,
+// exponent form outside [1e-6, 1e21), two-digit negative exponents
+// shortened) on random bit patterns and on the boundaries.
+func TestJSONNumberMatchesEncodingJSON(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 9))
+	cases := []float64{1e-6, 9.999999999999999e-7, 1e21, 9.99999999999999e20, 1e-7, 1.5e-300, 5e-324, math.MaxFloat64, -2.5e-8, 0.1, 123456.789}
+	for range 20000 {
+		f := math.Float64frombits(rng.Uint64())
+		if !math.IsNaN(f) && !math.IsInf(f, 0) {
+			cases = append(cases, f)
+		}
+	}
+	for _, f := range cases {
+		want, err := json.Marshal(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := jsonNumber(f); got != string(want) {
+			t.Errorf("jsonNumber(%v) = %s, encoding/json writes %s", f, got, want)
+		}
 	}
 }

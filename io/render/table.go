@@ -15,6 +15,44 @@ type Table struct {
 	Columns []string // column names, which are also the JSON keys
 	Rows    [][]Cell
 	Notes   []string // footnotes, printed under the table
+
+	// RowFunc, when not nil, supplies the rows in place of Rows: row i
+	// (0 ≤ i < NumRows), built in dst (the same slice, reused from call
+	// to call; the encoders keep none of its cells), so that a table of a
+	// million results is written without holding every cell at once.
+	RowFunc func(i int, dst []Cell) []Cell
+	NumRows int
+}
+
+// Len returns the number of rows.
+func (t *Table) Len() int {
+	if t.RowFunc != nil {
+		return t.NumRows
+	}
+	return len(t.Rows)
+}
+
+// each calls f with every row in order, checking each as check does; the
+// row is valid only during the call. It stops at the first bad row or the
+// first error of f.
+func (t *Table) each(f func(r int, row []Cell) error) error {
+	var dst []Cell
+	for r := range t.Len() {
+		var row []Cell
+		if t.RowFunc != nil {
+			dst = t.RowFunc(r, dst[:0])
+			row = dst
+		} else {
+			row = t.Rows[r]
+		}
+		if err := t.checkRow(r, row); err != nil {
+			return err
+		}
+		if err := f(r, row); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // Format is an output format. The zero Format is invalid.
@@ -62,7 +100,9 @@ func ParseFormat(name string) (Format, error) {
 // shortest exact numbers and ignores digits.
 //
 // Encode checks the table first and writes nothing when a row has the wrong
-// number of cells or a cell is the zero Cell.
+// number of cells or a cell is the zero Cell. A table with a RowFunc is
+// checked row by row as it is written, so such an error may come after
+// part of it was written.
 func Encode(w io.Writer, t *Table, f Format, digits int) error {
 	if err := t.check(); err != nil {
 		return fmt.Errorf("encode %s: %w", f, err)
@@ -70,13 +110,17 @@ func Encode(w io.Writer, t *Table, f Format, digits int) error {
 	bw := bufio.NewWriter(w)
 	switch f {
 	case Markdown:
-		encodeMarkdown(bw, t, digits)
+		if err := encodeMarkdown(bw, t, digits); err != nil {
+			return fmt.Errorf("encode markdown: %w", err)
+		}
 	case CSV:
 		if err := encodeCSV(bw, t, digits); err != nil {
 			return fmt.Errorf("encode csv: %w", err)
 		}
 	case JSON:
-		encodeJSON(bw, t)
+		if err := encodeJSON(bw, t); err != nil {
+			return fmt.Errorf("encode json: %w", err)
+		}
 	default:
 		return fmt.Errorf("encode: invalid format %s", f)
 	}
@@ -86,19 +130,31 @@ func Encode(w io.Writer, t *Table, f Format, digits int) error {
 	return nil
 }
 
-// check reports the first row of the wrong width or invalid cell.
+// check reports the first row of the wrong width or invalid cell. A
+// RowFunc table is checked row by row as it is written instead.
 func (t *Table) check() error {
 	if t == nil {
 		return fmt.Errorf("nil table")
 	}
+	if t.RowFunc != nil {
+		return nil
+	}
 	for r, row := range t.Rows {
-		if len(row) != len(t.Columns) {
-			return fmt.Errorf("table %q: row %d has %d cells for %d columns", t.Title, r+1, len(row), len(t.Columns))
+		if err := t.checkRow(r, row); err != nil {
+			return err
 		}
-		for c, cell := range row {
-			if !cell.kind.valid() {
-				return fmt.Errorf("table %q: row %d, column %q: cell of invalid kind %s", t.Title, r+1, t.Columns[c], cell.kind)
-			}
+	}
+	return nil
+}
+
+// checkRow reports a row of the wrong width or with an invalid cell.
+func (t *Table) checkRow(r int, row []Cell) error {
+	if len(row) != len(t.Columns) {
+		return fmt.Errorf("table %q: row %d has %d cells for %d columns", t.Title, r+1, len(row), len(t.Columns))
+	}
+	for c, cell := range row {
+		if !cell.kind.valid() {
+			return fmt.Errorf("table %q: row %d, column %q: cell of invalid kind %s", t.Title, r+1, t.Columns[c], cell.kind)
 		}
 	}
 	return nil
