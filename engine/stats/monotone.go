@@ -3,7 +3,6 @@ package stats
 import (
 	"fmt"
 	"math"
-	"slices"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -127,9 +126,9 @@ func CheckMonotone(x, y []float64) MonotoneCheck {
 // once in O(n log n), so that each check costs O(n).
 type MonotoneX struct {
 	n      int
-	order  []int // positions in order of x; ties keep their order of appearance
-	bounds []int // group j is order[bounds[j]:bounds[j+1]]
-	usable bool  // n ≥ monotoneMinN, x not constant, at least 3 groups
+	order  []int32 // positions in order of x; ties keep their order of appearance
+	bounds []int   // group j is order[bounds[j]:bounds[j+1]]
+	usable bool    // n ≥ monotoneMinN, x not constant, at least 3 groups
 }
 
 // PrepareMonotone prepares x for MonotoneX.Check. x must not hold NaN.
@@ -139,19 +138,18 @@ func PrepareMonotone(x []float64) *MonotoneX {
 	if n < monotoneMinN || isConstant(x) {
 		return mx
 	}
+	// The radix argsort keeps tied values in their order of appearance,
+	// as sorting (value, position) pairs would.
+	order := Argsort(x)
 	p := make([]valueIndex, n)
-	for i, v := range x {
-		p[i] = valueIndex{v: v, i: i}
+	for k, i := range order {
+		p[k] = valueIndex{v: x[i], i: int(i)}
 	}
-	slices.SortFunc(p, compareValueIndex)
 	mx.bounds = monotoneBins(p, min(monotoneMaxBins, max(monotoneMinBins, n/10)))
 	if len(mx.bounds)-1 < 3 {
 		return mx
 	}
-	mx.order = make([]int, n)
-	for i, q := range p {
-		mx.order[i] = q.i
-	}
+	mx.order = order
 	mx.usable = true
 	return mx
 }
@@ -167,10 +165,9 @@ func (mx *MonotoneX) Check(ry []float64) MonotoneCheck {
 	if len(ry) != mx.n {
 		panic(fmt.Sprintf("stats: MonotoneX.Check: %d ranks for %d values", len(ry), mx.n))
 	}
-	res := mx.notApplicable()
 	n := mx.n
 	if !mx.usable || isConstant(ry) {
-		return res
+		return mx.notApplicable()
 	}
 	bounds, order := mx.bounds, mx.order
 	k := len(bounds) - 1
@@ -194,7 +191,101 @@ func (mx *MonotoneX) Check(ry []float64) MonotoneCheck {
 			rssFree += d * d
 		}
 	}
+	return mx.finish(w, m, tss, rssFree)
+}
 
+// MonotoneY is a column prepared to be the y of MonotoneX.CheckY: its
+// midranks, doubled and centred, d = 2·rank − (n + 1), which are integers
+// because midranks are multiples of ½.
+type MonotoneY struct {
+	d        []int16
+	mid      []float64 // the midranks themselves when n > monotoneIntMax
+	constant bool
+}
+
+// monotoneIntMax is the longest column CheckY sums in integers: |d| ≤ n
+// fits in 16 bits (half the memory traffic of int32: a matrix streams its
+// columns through the cache once per pair), and a group's w·Σd² stays
+// below 2⁶² and cannot overflow.
+const monotoneIntMax = 1<<15 - 1
+
+// PrepareMonotoneY ranks y (midranks) for MonotoneX.CheckY. y must not hold
+// NaN.
+func PrepareMonotoneY(y []float64) MonotoneY {
+	r := RankTies(y, TieAverage)
+	n := len(y)
+	my := MonotoneY{constant: isConstant(y)}
+	if n > monotoneIntMax {
+		my.mid = r.Ranks
+		return my
+	}
+	my.d = make([]int16, n)
+	for i, v := range r.Ranks {
+		my.d[i] = int16(int32(2*v) - int32(n+1)) // 2·v is an exact integer
+	}
+	return my
+}
+
+// CheckY is Check(Rank(y, TieAverage)) for a y prepared by
+// PrepareMonotoneY, in O(n), and faster: the correlation matrix of a
+// 1000-column table checks half a million pairs. Up to 2¹⁵ values every sum
+// is an exact integer, so the residual sum of squares about the group means,
+// Σⱼ (wⱼ·Σd² − (Σd)²)/(4wⱼ), is exact up to one rounding per group (Check
+// reaches the same by a second pass); the shares agree with Check's to
+// rounding. It panics when y and x differ in length.
+//
+// Measured with BenchmarkMonotoneCheck at n = 5000: 1.5× faster than
+// Check with the data in the cache (4.7 µs against 7.2 µs a call); more in
+// a matrix, whose columns are not, as the int16 ranks halve what each
+// check reads.
+func (mx *MonotoneX) CheckY(y MonotoneY) MonotoneCheck {
+	if y.mid != nil {
+		if y.constant {
+			return mx.notApplicable()
+		}
+		return mx.Check(y.mid)
+	}
+	if len(y.d) != mx.n {
+		panic(fmt.Sprintf("stats: MonotoneX.CheckY: %d ranks for %d values", len(y.d), mx.n))
+	}
+	if !mx.usable || y.constant {
+		return mx.notApplicable()
+	}
+	bounds, order, d := mx.bounds, mx.order, y.d
+	k := len(bounds) - 1
+	w, m := make([]float64, k), make([]float64, k)
+	var q2, rss4 float64 // 4·TSS and 4·RSS_free
+	for j := range k {
+		s, q := gatherSums(order[bounds[j]:bounds[j+1]], d)
+		wj := int64(bounds[j+1] - bounds[j])
+		w[j] = float64(wj)
+		m[j] = float64(s) / float64(2*wj)
+		q2 += float64(q)
+		rss4 += float64(wj*q-s*s) / float64(wj)
+	}
+	return mx.finish(w, m, q2/4, rss4/4)
+}
+
+// gatherSums returns Σ d[i] and Σ d[i]² over the positions i in order. It
+// is a function of its own so that its sums stay in registers: inlined in
+// CheckY's loop they were kept on the stack, and the loop ran 2–3× slower.
+//
+//go:noinline
+func gatherSums(order []int32, d []int16) (s, q int64) {
+	for _, i := range order {
+		v := int64(d[i])
+		s += v
+		q += v * v
+	}
+	return s, q
+}
+
+// finish completes a check from the group sizes w, the group means m of the
+// centred ranks, their total sum of squares tss and the residual sum of
+// squares about the group means.
+func (mx *MonotoneX) finish(w, m []float64, tss, rssFree float64) MonotoneCheck {
+	res := mx.notApplicable()
+	n, k := mx.n, len(w)
 	up := Isotonic(m, w)
 	neg := make([]float64, k)
 	for j := range m {

@@ -683,3 +683,69 @@ func TestPreparedMonotoneMatchesCheckMonotone(t *testing.T) {
 		}
 	}
 }
+
+// TestCheckYMatchesCheck compares the integer sums of CheckY with Check's
+// two floating-point passes on random samples with heavy ties, U shapes
+// and constant columns, and on one sample past monotoneIntMax, where
+// CheckY takes Check's path.
+func TestCheckYMatchesCheck(t *testing.T) {
+	rng := rand.New(rand.NewPCG(31, 7))
+	for trial := range 300 {
+		n := 20 + rng.IntN(400)
+		if trial == 0 {
+			n = monotoneIntMax + 1000
+		}
+		levels := 2 + rng.IntN(12)
+		x, y := make([]float64, n), make([]float64, n)
+		for i := range x {
+			x[i] = float64(rng.IntN(levels))
+			switch trial % 3 {
+			case 0: // a U with noise, on a coarse scale
+				y[i] = math.Round((x[i]-float64(levels)/2)*(x[i]-float64(levels)/2) + rng.NormFloat64())
+			case 1: // noise
+				y[i] = float64(rng.IntN(5))
+			default: // constant y in some trials
+				y[i] = float64(trial % 2)
+			}
+		}
+		mx := PrepareMonotone(x)
+		want := mx.Check(Rank(y, TieAverage))
+		got := mx.CheckY(PrepareMonotoneY(y))
+		if got.Applicable != want.Applicable || got.NonMonotone != want.NonMonotone ||
+			got.Bins != want.Bins || got.Direction != want.Direction || got.N != want.N {
+			t.Fatalf("trial %d (n = %d): CheckY = %+v, Check = %+v", trial, n, got, want)
+		}
+		if !want.Applicable {
+			continue
+		}
+		for _, q := range [][3]float64{{got.R2Free, want.R2Free, 1e-12}, {got.R2Monotone, want.R2Monotone, 1e-12}, {got.P, want.P, 1e-9}} {
+			if math.Abs(q[0]-q[1]) > q[2]*math.Max(1, math.Abs(q[1])) {
+				t.Fatalf("trial %d (n = %d): CheckY = %+v, Check = %+v", trial, n, got, want)
+			}
+		}
+	}
+}
+
+// BenchmarkMonotoneCheck compares CheckY with Check (the baseline) on the
+// engine's 5000-row subsample of a continuous pair.
+func BenchmarkMonotoneCheck(b *testing.B) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	x, y := make([]float64, 5000), make([]float64, 5000)
+	for i := range x {
+		x[i] = rng.NormFloat64()
+		y[i] = x[i]*x[i] + rng.NormFloat64()
+	}
+	mx := PrepareMonotone(x)
+	ry := Rank(y, TieAverage)
+	my := PrepareMonotoneY(y)
+	b.Run("Check", func(b *testing.B) {
+		for b.Loop() {
+			mx.Check(ry)
+		}
+	})
+	b.Run("CheckY", func(b *testing.B) {
+		for b.Loop() {
+			mx.CheckY(my)
+		}
+	})
+}

@@ -7,6 +7,9 @@ import (
 	"runtime"
 	"slices"
 	"sync"
+	"unsafe"
+
+	"concordat/engine/bigmem"
 )
 
 // radixScratch is the scratch of one radix sort: order-preserving keys
@@ -43,7 +46,8 @@ func floatKey(v float64) uint64 {
 
 // radixPool keeps radix scratch between calls (*radixScratch), so that
 // ranking many columns of the same length allocates and faults in its
-// buffers once; the pool lets them go at garbage collection.
+// buffers once; the pool lets them go at garbage collection. Scratch for
+// long inputs is kept in bigScratch instead.
 var radixPool sync.Pool
 
 // poolMinLen is the length from which radix scratch goes through the pool:
@@ -55,33 +59,119 @@ var radixPool sync.Pool
 // tests of allocation-free loops count allocations).
 const poolMinLen = radixMinLen + 1
 
-// getRadixScratch returns scratch for n values from the pool, or new
-// scratch.
+// bigScratch keeps the scratch of long sorts (bigScratchMin values or more)
+// until ReleaseScratch: at 10⁷ values it is 240 MB, and a sync.Pool may miss
+// it (an item put from one processor is not always found from another),
+// which makes the next column fault in 240 MB more. At most bigScratchKeep
+// are kept, the largest.
+var bigScratch struct {
+	sync.Mutex
+	free []*radixScratch
+}
+
+const (
+	bigScratchMin  = parallelMin
+	bigScratchKeep = 2
+)
+
+// ReleaseScratch lets go of the sort scratch kept for long inputs; the
+// engine calls it when a run has computed its results.
+func ReleaseScratch() {
+	bigScratch.Lock()
+	bigScratch.free = nil
+	bigScratch.Unlock()
+}
+
+// getRadixScratch returns scratch for n values, kept from an earlier call
+// or new.
 func getRadixScratch(n int) *radixScratch {
 	if n < poolMinLen {
 		return newRadixScratch(n)
 	}
-	if s, ok := radixPool.Get().(*radixScratch); ok && cap(s.i[0]) >= n {
-		for c := range 2 {
-			s.k[c], s.i[c] = s.k[c][:n], s.i[c][:n]
-		}
-		return s
+	var s *radixScratch
+	if n >= bigScratchMin {
+		s = takeBigScratch(n)
+	} else if p, ok := radixPool.Get().(*radixScratch); ok && cap(p.i[0]) >= n {
+		s = p
 	}
-	return newRadixScratch(n)
+	if s == nil {
+		return newRadixScratch(n)
+	}
+	for c := range 2 {
+		s.i[c] = s.i[c][:n]
+		if cap(s.k[c]) < n { // given away by spareAsFloats
+			s.k[c] = bigmem.Make[uint64](n, n)
+		}
+		s.k[c] = s.k[c][:n]
+	}
+	return s
+}
+
+// takeBigScratch removes and returns the smallest kept scratch that holds n
+// values, or nil.
+func takeBigScratch(n int) *radixScratch {
+	bigScratch.Lock()
+	defer bigScratch.Unlock()
+	best := -1
+	for j, s := range bigScratch.free {
+		if c := cap(s.i[0]); c >= n && (best < 0 || c < cap(bigScratch.free[best].i[0])) {
+			best = j
+		}
+	}
+	if best < 0 {
+		return nil
+	}
+	s := bigScratch.free[best]
+	bigScratch.free = slices.Delete(bigScratch.free, best, best+1)
+	return s
+}
+
+// spareAsFloats hands the key copy that does not hold the sorted keys to
+// the caller as n float64s (their bits are the old keys) and drops it from
+// the scratch, which allocates a new one when next used. RankTies writes the
+// ranks there: at 10⁷ values that is 80 MB the process does not fault in
+// twice.
+//
+// Scratch taken from the pool for fewer values than it holds keeps its
+// copy, and the caller gets new memory: handing a 2000-value ranking an
+// 80 MB buffer would make the next long sort allocate it again.
+func (s *radixScratch) spareAsFloats() []float64 {
+	k := s.k[1-s.cur]
+	if len(k) == 0 || cap(k) > len(k)+len(k)/8 {
+		return make([]float64, len(k))
+	}
+	s.k[1-s.cur] = nil
+	// uint64 and float64 have the same size and alignment and hold no
+	// pointers, so the memory may be read as either.
+	return unsafe.Slice((*float64)(unsafe.Pointer(unsafe.SliceData(k))), len(k))
 }
 
 // newRadixScratch allocates scratch for n values.
 func newRadixScratch(n int) *radixScratch {
 	s := new(radixScratch)
 	for c := range 2 {
-		s.k[c], s.i[c] = make([]uint64, n), make([]int32, n)
+		s.k[c], s.i[c] = bigmem.Make[uint64](n, n), bigmem.Make[int32](n, n)
 	}
 	return s
 }
 
-// putRadixScratch returns scratch to the pool.
+// putRadixScratch keeps scratch for later calls.
 func putRadixScratch(s *radixScratch) {
-	if cap(s.i[0]) >= poolMinLen {
+	switch c := cap(s.i[0]); {
+	case c >= bigScratchMin:
+		bigScratch.Lock()
+		bigScratch.free = append(bigScratch.free, s)
+		if len(bigScratch.free) > bigScratchKeep {
+			small := 0
+			for j, f := range bigScratch.free {
+				if cap(f.i[0]) < cap(bigScratch.free[small].i[0]) {
+					small = j
+				}
+			}
+			bigScratch.free = slices.Delete(bigScratch.free, small, small+1)
+		}
+		bigScratch.Unlock()
+	case c >= poolMinLen:
 		radixPool.Put(s)
 	}
 }
@@ -119,6 +209,16 @@ func (s *radixScratch) sort(x []float64, who string) {
 		s.sortSmall(x, who)
 		return
 	}
+	if parallel(n) {
+		s.sortParallel(x, who)
+		return
+	}
+	s.sortSerial(x, who)
+}
+
+// sortSerial is sort on one goroutine, for x longer than radixMinLen.
+func (s *radixScratch) sortSerial(x []float64, who string) {
+	n := len(x)
 	var hist [8][256]uint32
 	for i, v := range x {
 		if v != v {
@@ -176,6 +276,107 @@ func (s *radixScratch) sort(x []float64, who string) {
 		for m := range k {
 			k[m], i[m] = first, int32(m)
 		}
+	}
+}
+
+// sortParallel is sort on two goroutines, for long x: each takes half of
+// the values in every pass. A pass first counts its digit in each half of
+// its input (the first pass uses the histograms of x's halves, made in the
+// same read that checks for NaN), so that the first half's values of each
+// digit go before the second half's: the sort stays stable and its result
+// is the serial one, bit for bit. Ranking two columns one after the other
+// this way, rather than side by side with a serial sort each, takes about
+// the same time and half the scratch memory, which on the test machine is
+// what costs most (see radixScratch).
+func (s *radixScratch) sortParallel(x []float64, who string) {
+	n := len(x)
+	mid := n / 2
+	halves := [2][2]int{{0, mid}, {mid, n}}
+	var hist [2][8][256]uint32
+	both(true, func() { histograms(x, halves[0], &hist[0], who) }, func() { histograms(x, halves[1], &hist[1], who) })
+	first := floatKey(x[0])
+	passes := 0
+	var count [2][256]uint32
+	for d := range 8 {
+		shift := uint(8 * d)
+		if hist[0][d][uint8(first>>shift)]+hist[1][d][uint8(first>>shift)] == uint32(n) {
+			continue // this digit is the same in every key
+		}
+		dk, di := s.k[passes%2][:n], s.i[passes%2][:n]
+		sk, si := s.k[1-passes%2][:n], s.i[1-passes%2][:n]
+		if passes == 0 {
+			count[0], count[1] = hist[0][d], hist[1][d]
+		} else {
+			both(true, func() { countDigit(sk[:mid], shift, &count[0]) }, func() { countDigit(sk[mid:], shift, &count[1]) })
+		}
+		// Starting positions: every value of a smaller digit first, then
+		// within a digit the first half's values before the second's.
+		var sum uint32
+		for j := range 256 {
+			c0, c1 := count[0][j], count[1][j]
+			count[0][j], count[1][j] = sum, sum+c0
+			sum += c0 + c1
+		}
+		scatter := func(w int) {
+			lo, hi := halves[w][0], halves[w][1]
+			h := &count[w]
+			if passes == 0 {
+				for i := lo; i < hi; i++ {
+					k := floatKey(x[i])
+					j := uint8(k >> shift)
+					p := h[j]
+					h[j] = p + 1
+					dk[p] = k
+					di[p] = int32(i)
+				}
+				return
+			}
+			for m := lo; m < hi; m++ {
+				k := sk[m]
+				j := uint8(k >> shift)
+				p := h[j]
+				h[j] = p + 1
+				dk[p] = k
+				di[p] = si[m]
+			}
+		}
+		both(true, func() { scatter(0) }, func() { scatter(1) })
+		s.cur = passes % 2
+		passes++
+	}
+	if passes == 0 { // every key is equal: the input order is sorted
+		k, i := s.k[0][:n], s.i[0][:n]
+		for m := range k {
+			k[m], i[m] = first, int32(m)
+		}
+	}
+}
+
+// histograms adds the eight digit histograms of the keys of x[r[0]:r[1]] to
+// h, and panics, naming who, at a NaN.
+func histograms(x []float64, r [2]int, h *[8][256]uint32, who string) {
+	for i := r[0]; i < r[1]; i++ {
+		v := x[i]
+		if v != v {
+			panic(fmt.Sprintf("stats: %s: NaN at index %d", who, i))
+		}
+		k := floatKey(v)
+		h[0][uint8(k)]++
+		h[1][uint8(k>>8)]++
+		h[2][uint8(k>>16)]++
+		h[3][uint8(k>>24)]++
+		h[4][uint8(k>>32)]++
+		h[5][uint8(k>>40)]++
+		h[6][uint8(k>>48)]++
+		h[7][uint8(k>>56)]++
+	}
+}
+
+// countDigit sets h to the histogram of the digit at shift of keys.
+func countDigit(keys []uint64, shift uint, h *[256]uint32) {
+	*h = [256]uint32{}
+	for _, k := range keys {
+		h[uint8(k>>shift)]++
 	}
 }
 

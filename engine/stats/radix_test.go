@@ -495,3 +495,58 @@ func TestCountInversions(t *testing.T) {
 		t.Fatalf("countInversions = %d, sequential %d", got, want)
 	}
 }
+
+// TestSortParallelMatchesSerial runs the two-goroutine radix sort and the
+// serial one on the same samples (every kind of radixSample, odd and even
+// lengths past parallelMin, a constant column) and wants the same keys and
+// positions; whichever path sort takes, the result is the same.
+func TestSortParallelMatchesSerial(t *testing.T) {
+	rng := rand.New(rand.NewPCG(20261202, 9))
+	for trial := range 12 {
+		n := parallelMin + rng.IntN(3*parallelMin)
+		x := radixSample(rng, n, trial)
+		if trial == 11 {
+			for i := range x {
+				x[i] = 2.5
+			}
+		}
+		serial, par := newRadixScratch(n), newRadixScratch(n)
+		serial.sortSerial(x, "test")
+		par.sortParallel(x, "test")
+		if !slices.Equal(serial.keys(), par.keys()) || !slices.Equal(serial.idx(), par.idx()) {
+			t.Fatalf("trial %d (n = %d, kind %d): the parallel sort differs from the serial one", trial, n, trial%5)
+		}
+	}
+	x := make([]float64, 2*parallelMin)
+	x[len(x)-3] = math.NaN()
+	mustPanic(t, "NaN at index 131069", func() { newRadixScratch(len(x)).sortParallel(x, "test") })
+}
+
+// TestRankSortedSplit compares rankSorted, which ranks two halves from
+// rankSplitMin values on, with one pass over all the sorted values
+// (rankRange from 0), under every rule: the same ranks bit for bit, the same
+// counts, and tie sums that agree (exactly here, as every group's terms are
+// small integers).
+func TestRankSortedSplit(t *testing.T) {
+	rng := rand.New(rand.NewPCG(20261202, 10))
+	for trial := range 10 {
+		n := rankSplitMin + rng.IntN(2*rankSplitMin)
+		x := radixSample(rng, n, trial)
+		if trial == 9 { // one giant tie group over the middle: no cut
+			for i := n / 4; i < 3*n/4; i++ {
+				x[i] = 1
+			}
+		}
+		s := newRadixScratch(n)
+		s.sort(x, "test")
+		for _, rule := range []TieRule{TieAverage, TieMin, TieMax, TieDense, TieFirst} {
+			got, want := make([]float64, n), make([]float64, n)
+			gg, gt := rankSorted(s.keys(), s.idx(), rule, got)
+			wg, wt := rankRange(s.keys(), s.idx(), 0, n, 0, rule, want)
+			if !slices.Equal(got, want) || gt != wt || gg != wg {
+				t.Fatalf("trial %d (n = %d, kind %d), rule %v: split ranking differs: groups %+v, tied %d; whole %+v, tied %d",
+					trial, n, trial%5, rule, gg, gt, wg, wt)
+			}
+		}
+	}
+}
