@@ -15,6 +15,8 @@ import (
 	"os"
 	"runtime"
 	"sync"
+
+	"concordat/engine/bigmem"
 )
 
 // textBlock is the number of bytes a text file is read in. Each block, less
@@ -669,7 +671,7 @@ func room[T any](s []T, n, est int) []T {
 		return s
 	}
 	c := max(len(s)+n, est, len(s)+len(s)/8)
-	t := make([]T, len(s), c)
+	t := bigmem.Make[T](len(s), c)
 	copy(t, s)
 	return t
 }

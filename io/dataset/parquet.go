@@ -18,6 +18,8 @@ import (
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+
+	"concordat/engine/bigmem"
 )
 
 // batchRows is the number of rows per Arrow record batch when reading
@@ -264,7 +266,7 @@ func parseParquet(ctx context.Context, spec Spec, f *os.File, size int64) (*Tabl
 			c.Labels = make([]string, 0, nrows)
 			c.Missing = make([]bool, 0, nrows)
 		} else {
-			c.Values = make([]float64, nrows)
+			c.Values = bigmem.Make[float64](nrows, nrows)
 		}
 		t.Columns[k] = c
 	}
