@@ -6,6 +6,9 @@ import (
 	"slices"
 	"strings"
 	"sync"
+	"sync/atomic"
+
+	"golang.org/x/sync/errgroup"
 
 	"concordat/engine/stats"
 	"concordat/io/dataset"
@@ -28,7 +31,8 @@ type cellSource struct {
 
 	// Listwise: the table rows complete in every column of the pairing and
 	// every control, and the note every pair of the group carries.
-	complete []int
+	complete []int // nil when no row is dropped
+	kept     int   // rows in the sample: len(complete), or total
 	dropNote string
 
 	cols map[string]*column
@@ -53,14 +57,20 @@ type column struct {
 	values  []float64
 	missing int // missing cells among the group's rows
 
-	once  sync.Once
-	share float64          // stats.TieShare
-	ranks []float64        // under the test's tie rule
-	mono  *stats.MonotoneX // the monotonicity subsample prepared as x
-	mid   []float64        // midranks of the monotonicity subsample (as y)
+	once     sync.Once
+	prepared atomic.Bool      // once has run
+	share    float64          // stats.TieShare
+	ranks    []float64        // under the test's tie rule
+	mono     *stats.MonotoneX // the monotonicity subsample prepared as x
+	monoY    stats.MonotoneY  // the monotonicity subsample prepared as y
 
 	constant   bool    // every value equal
 	constValue float64 // that value
+
+	// The note on the column's ties above max_share: the same text for
+	// every pair of the column, so made once.
+	tieOnce sync.Once
+	tieNote string
 
 	// arrangements is n! over the product of t! for the column's tie
 	// groups: stats.Arrangements of a pair is the smaller of its columns'.
@@ -87,11 +97,14 @@ func (c *column) arrangementCount() float64 {
 }
 
 // monotoneRows is the most rows the monotonicity check reads: above it, an
-// evenly spaced subsample in file order. The check compares at most ten
-// group means, whose F test has ample power at this size to see a clear
-// bend, and the matrix of a 1000-column table then costs O(k·5000) per
-// column pair instead of O(k·n).
-const monotoneRows = 5000
+// evenly spaced subsample in file order. The check flags a bend only when
+// it explains at least a tenth of the rank variance (stats.CheckMonotone);
+// at 2000 rows in ten groups such a bend has an F statistic of at least
+// (0.1/9)/(0.9/1990) ≈ 24.6 on (9, 1990) degrees of freedom, ten times its
+// 1% point (≈ 2.4), so the decision rests on the size of the bend, which
+// 2000 rows estimate to within a few hundredths. The matrix of a 1000-column table then costs O(2000) per
+// column pair instead of O(n).
+const monotoneRows = 2000
 
 // monotoneSubsample returns every ⌈n/monotoneRows⌉-th value of v (v itself
 // when it is short enough).
@@ -115,9 +128,9 @@ func newCellSource(t *recipe.Test, tbl *dataset.Table, g group) *cellSource {
 		src.total = len(g.rows)
 	}
 	names := append(pairingColumns(t.Pairing), t.Controls...)
-	full := make(map[string][]float64, len(names))
-	for _, name := range names {
-		full[name] = valueColumn(tbl, name).Values
+	full := make([][]float64, len(names))
+	for j, name := range names {
+		full[j] = valueColumn(tbl, name).Values
 	}
 	row := func(k int) int {
 		if g.rows != nil {
@@ -127,34 +140,57 @@ func newCellSource(t *recipe.Test, tbl *dataset.Table, g group) *cellSource {
 	}
 	listwise := t.Pairing.Missing == recipe.Listwise
 	missing := make(map[string]int, len(names))
+	src.kept = src.total
 	if listwise {
-		src.complete = make([]int, 0, src.total)
-		for k := 0; k < src.total; k++ {
-			i, ok := row(k), true
-			for _, name := range names {
-				if math.IsNaN(full[name][i]) {
+		// Column by column (a matrix has a thousand columns); the list of
+		// complete rows is made only when a row is dropped.
+		var drop []bool
+		for j, name := range names {
+			col := full[j]
+			for k := range src.total {
+				if math.IsNaN(col[row(k)]) {
 					missing[name]++
-					ok = false
+					if drop == nil {
+						drop = make([]bool, src.total)
+					}
+					drop[k] = true
 				}
 			}
-			if ok {
-				src.complete = append(src.complete, i)
-			}
 		}
-		src.dropNote = listwiseNote(names, missing, src.total, len(src.complete))
+		if drop != nil {
+			src.complete = make([]int, 0, src.total)
+			for k, d := range drop {
+				if !d {
+					src.complete = append(src.complete, row(k))
+				}
+			}
+			src.kept = len(src.complete)
+		}
+		src.dropNote = listwiseNote(names, missing, src.total, src.kept)
 	}
-	for _, name := range names {
+	// A column that keeps every row of the table is the table's own slice
+	// (never written to), not a copy: at 10⁷ rows a copy is 80 MB.
+	everyRow := g.rows == nil && src.complete == nil
+	for j, name := range names {
 		c := &column{}
-		if listwise {
+		switch {
+		case everyRow:
+			c.values = full[j]
+			if listwise {
+				c.missing = missing[name]
+			} else {
+				c.missing = countNaN(c.values)
+			}
+		case src.complete != nil:
 			c.values = make([]float64, len(src.complete))
-			for j, i := range src.complete {
-				c.values[j] = full[name][i]
+			for k, i := range src.complete {
+				c.values[k] = full[j][i]
 			}
 			c.missing = missing[name]
-		} else {
+		default:
 			c.values = make([]float64, src.total)
 			for k := range c.values {
-				v := full[name][row(k)]
+				v := full[j][row(k)]
 				c.values[k] = v
 				if math.IsNaN(v) {
 					c.missing++
@@ -164,6 +200,17 @@ func newCellSource(t *recipe.Test, tbl *dataset.Table, g group) *cellSource {
 		src.cols[name] = c
 	}
 	return src
+}
+
+// countNaN counts the missing values (NaN) of v.
+func countNaN(v []float64) int {
+	n := 0
+	for _, x := range v {
+		if math.IsNaN(x) {
+			n++
+		}
+	}
+	return n
 }
 
 // listwiseNote says how many rows listwise deletion left out and which
@@ -199,7 +246,7 @@ func (src *cellSource) sample(pair recipe.Pair) (sample, *column, *column) {
 		s.z = append(s.z, src.cols[name].values)
 	}
 	if t.Pairing.Missing == recipe.Listwise {
-		s.dropped = src.total - len(src.complete)
+		s.dropped = src.total - src.kept
 		s.dropNote = src.dropNote
 	}
 	return s, cx, cy
@@ -222,8 +269,9 @@ func (c *column) prepare(rule stats.TieRule) *column {
 		}
 		sub := monotoneSubsample(c.values)
 		c.mono = stats.PrepareMonotone(sub)
-		c.mid = stats.Rank(sub, stats.TieAverage)
+		c.monoY = stats.PrepareMonotoneY(sub)
 		c.constant, c.constValue = constant(c.values)
+		c.prepared.Store(true)
 	})
 	return c
 }
@@ -275,9 +323,22 @@ func (src *cellSource) buildMatrices(env cellEnv) error {
 		src.index[name] = i
 	}
 	if slices.Contains(t.Measures, stats.Spearman) {
+		// Every cell of the group waits for the matrix: rank its columns
+		// on all workers.
+		var eg errgroup.Group
+		eg.SetLimit(env.workers)
 		ranks := make([][]float64, len(names))
 		for i, name := range names {
-			ranks[i] = src.cols[name].prepare(t.Ties.Rule).ranks
+			eg.Go(func() error {
+				if err := env.ctx.Err(); err != nil {
+					return err
+				}
+				ranks[i] = src.cols[name].prepare(t.Ties.Rule).ranks
+				return nil
+			})
+		}
+		if err := eg.Wait(); err != nil {
+			return err
 		}
 		m, err := stats.CorrelationMatrix(env.ctx, ranks, env.workers)
 		if err != nil {

@@ -6,7 +6,6 @@ import (
 	"math"
 	"slices"
 	"strings"
-	"sync"
 
 	"concordat/engine/stats"
 	"concordat/recipe"
@@ -55,6 +54,7 @@ type cellInput struct {
 	s      sample
 	px, py *column
 	src    *cellSource // the group's source when px and py are shared
+	dst    []Result    // where the results go: one per measure of the test
 }
 
 // measureSample computes every measure of the cell's test on its sample,
@@ -62,7 +62,7 @@ type cellInput struct {
 // is chosen by pMethodFor; resampling (permutations, bootstrap) uses
 // streams keyed by the seed, the test, the pair and the group, so neither
 // the worker count nor the order of the cells can change a number.
-func measureSample(env cellEnv, c cellInput) ([]Result, error) {
+func measureSample(env cellEnv, c cellInput) error {
 	t, pair, s := c.test, c.pair, c.s
 	n := len(s.x)
 	k := len(s.z)
@@ -71,12 +71,12 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 	shareX, shareY := math.NaN(), math.NaN()
 	switch {
 	case c.px != nil:
-		// Large columns are prepared side by side (a no-op when another
-		// cell has prepared them already).
-		var wg sync.WaitGroup
-		wg.Go(func() { c.px.prepare(t.Ties.Rule) })
+		// One column after the other (a no-op when another cell has
+		// prepared them already): a long column's sort runs on two
+		// goroutines itself, and preparing both at once would hold two
+		// sets of sort scratch (stats.RankTies).
+		c.px.prepare(t.Ties.Rule)
 		c.py.prepare(t.Ties.Rule)
-		wg.Wait()
 		shareX, shareY = c.px.share, c.py.share
 	case n > 0:
 		shareX, shareY = stats.TieShare(s.x), stats.TieShare(s.y)
@@ -121,7 +121,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 		return stats.Arrangements(s.x, s.y)
 	}
 
-	results := make([]Result, len(t.Measures))
+	results := c.dst
 	choices := make([]pChoice, len(t.Measures))
 	var counts *stats.PairCounts // Kendall's pair counts, computed once
 	for i, m := range t.Measures {
@@ -140,7 +140,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 			if c.px != nil && k == 0 {
 				v, ok, err := c.src.matrixValue(env, m, pair)
 				if err != nil {
-					return nil, err
+					return err
 				}
 				if ok {
 					r.Estimate, fromMatrix = v, true
@@ -172,7 +172,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 				}
 				r.Estimate = counts.Estimate(m)
 			}
-			r.Warnings = append(r.Warnings, tieWarnings(t, m, pair, s, shareX, shareY, counts, choices[i])...)
+			r.Warnings = append(r.Warnings, tieWarnings(t, m, c, shareX, shareY, counts, choices[i])...)
 			if k > 0 && math.IsNaN(r.Estimate) && !slices.ContainsFunc(r.Warnings, func(w string) bool { return strings.HasPrefix(w, "infinite") }) {
 				r.Warnings = append(r.Warnings, fmt.Sprintf(
 					"the partial correlation is undefined: after removing %s, nothing of %s or %s is left to correlate (a control determines its ranks or values, or the controls are collinear)",
@@ -183,10 +183,10 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 	}
 
 	if err := pValues(env, c, results, choices, counts); err != nil {
-		return nil, err
+		return err
 	}
 	if err := intervals(env, c, results); err != nil {
-		return nil, err
+		return err
 	}
 
 	for i := range results {
@@ -218,7 +218,7 @@ func measureSample(env cellEnv, c cellInput) ([]Result, error) {
 			r.Warnings = []string{}
 		}
 	}
-	return results, nil
+	return nil
 }
 
 // commonNotes are the notes every result of a sample carries whatever the
@@ -241,7 +241,7 @@ func commonNotes(s sample) []string {
 func monotoneNote(c cellInput) []string {
 	var mc stats.MonotoneCheck
 	if c.px != nil {
-		mc = c.px.prepare(c.test.Ties.Rule).mono.Check(c.py.prepare(c.test.Ties.Rule).mid)
+		mc = c.px.prepare(c.test.Ties.Rule).mono.CheckY(c.py.prepare(c.test.Ties.Rule).monoY)
 	} else {
 		mc = stats.CheckMonotone(monotoneSubsample(c.s.x), monotoneSubsample(c.s.y))
 	}
@@ -326,7 +326,8 @@ func intervalGap(t *recipe.Test, m stats.Measure, r *Result) string {
 // max_share (suggesting Kendall's tau-b when the test does not report it
 // and can), and a tie rule other than midranks. For gamma and tau-a, which
 // treat tied pairs in ways a reader may not expect: how many pairs that is.
-func tieWarnings(t *recipe.Test, m stats.Measure, pair recipe.Pair, s sample, sx, sy float64, counts *stats.PairCounts, pc pChoice) []string {
+func tieWarnings(t *recipe.Test, m stats.Measure, c cellInput, sx, sy float64, counts *stats.PairCounts, pc pChoice) []string {
+	pair, s := c.pair, c.s
 	n := len(s.x)
 	heavy := sx > t.Ties.MaxShare || sy > t.Ties.MaxShare
 	var w []string
@@ -338,8 +339,12 @@ func tieWarnings(t *recipe.Test, m stats.Measure, pair recipe.Pair, s sample, sx
 		for _, side := range []struct {
 			name  string
 			share float64
-		}{{pair.X, sx}, {pair.Y, sy}} {
-			if side.share > t.Ties.MaxShare {
+			col   *column
+		}{{pair.X, sx, c.px}, {pair.Y, sy, c.py}} {
+			if side.share <= t.Ties.MaxShare {
+				continue
+			}
+			note := func() string {
 				tied := int(math.Round(side.share * float64(n)))
 				// Round down so that a share just under 1 never reads 100%.
 				msg := fmt.Sprintf("%d of %d %s values (%.0f%%) equal another value (above max_share %g)",
@@ -347,7 +352,14 @@ func tieWarnings(t *recipe.Test, m stats.Measure, pair recipe.Pair, s sample, sx
 				if suggest {
 					msg += "; Kendall's tau-b is often preferred when ties are this many"
 				}
-				w = append(w, msg)
+				return msg
+			}
+			if side.col != nil {
+				// The same for every pair of a shared column: written once.
+				side.col.tieOnce.Do(func() { side.col.tieNote = note() })
+				w = append(w, side.col.tieNote)
+			} else {
+				w = append(w, note())
 			}
 		}
 		if t.Ties.Rule != stats.TieAverage && (sx > 0 || sy > 0) {

@@ -12,12 +12,14 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync/atomic"
 	"time"
 
 	"github.com/hashicorp/hcl/v2"
 	"golang.org/x/sync/errgroup"
 
 	"concordat/engine/ledger"
+	"concordat/engine/stats"
 	"concordat/io/dataset"
 	"concordat/recipe"
 )
@@ -33,6 +35,10 @@ type Options struct {
 	// Progress, when not nil, receives a progress line that is redrawn in
 	// place (meant for a terminal); nil shows none.
 	Progress io.Writer
+
+	// Timings, when not nil, receives one line with the time each phase
+	// of the run took (reading, computing, tables, writing).
+	Timings io.Writer
 }
 
 func (o Options) stderr() io.Writer {
@@ -79,7 +85,12 @@ func Run(ctx context.Context, plan *recipe.Plan, opts Options) (*Report, error) 
 	if err != nil {
 		return nil, err
 	}
-	return comp.commit(ctx, plan, opts, started)
+	rep, err := comp.commit(ctx, plan, opts, started)
+	if err == nil {
+		comp.clock.lap("write")
+		comp.clock.report(plan.Path)
+	}
+	return rep, err
 }
 
 // Computation holds everything a run computed before anything is written.
@@ -88,6 +99,7 @@ type Computation struct {
 	inputs  []ledger.Input
 	steps   []ledger.Step
 	tables  []renderedTable
+	clock   *timings
 }
 
 // Compute loads the data and computes every result of plan, writing nothing.
@@ -95,6 +107,7 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	if diags := Check(plan); diags.HasErrors() {
 		return nil, &DiagnosticsError{Diags: diags, Data: anyDataFault(diags)}
 	}
+	clock := newTimings(opts.Timings)
 	tables, inputs, err := loadDatasets(ctx, plan)
 	if err != nil {
 		return nil, err
@@ -105,11 +118,12 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		return nil, err
 	}
 
+	clock.lap("read")
+
 	// Lay out the cells of work in recipe order, then fill them concurrently.
 	type cell struct {
 		in  cellInput
 		src *cellSource
-		out []Result
 	}
 	var cells []*cell
 	groupsOf := map[*recipe.Pairing][]group{}
@@ -126,6 +140,18 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	if diags.HasErrors() {
 		return nil, &DiagnosticsError{Diags: diags, Data: true}
 	}
+	// Every cell has one result per measure of its test, so the results
+	// are laid out before they are computed: each cell fills its own
+	// window of one slice (a matrix has hundreds of thousands of results,
+	// which are large), and each test's results are one window of it, as
+	// its cells are contiguous.
+	total := 0
+	for _, t := range plan.Tests {
+		total += len(t.Pairing.Pairs) * len(groupsOf[t.Pairing]) * len(t.Measures)
+	}
+	results := make([]Result, total)
+	byTest := map[string][]Result{}
+	at := 0
 	for _, t := range plan.Tests {
 		tbl := tables[t.Pairing.Dataset.Name]
 		groups := groupsOf[t.Pairing]
@@ -133,32 +159,49 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		for gi, g := range groups {
 			srcs[gi] = newCellSource(t, tbl, g)
 		}
+		start := at
 		for _, pair := range t.Pairing.Pairs {
 			for gi, g := range groups {
-				cells = append(cells, &cell{in: cellInput{test: t, pair: pair, group: g.name}, src: srcs[gi]})
+				out := results[at : at+len(t.Measures) : at+len(t.Measures)]
+				at += len(t.Measures)
+				cells = append(cells, &cell{in: cellInput{test: t, pair: pair, group: g.name, dst: out}, src: srcs[gi]})
 			}
 		}
+		byTest[t.Name] = results[start:at:at]
 	}
 
 	prog := newProgress(opts.Progress, len(cells))
 	defer prog.finish()
+	// The sort scratch kept between columns is not needed once every
+	// cell has its results.
+	defer stats.ReleaseScratch()
 	eg, ectx := errgroup.WithContext(ctx)
-	eg.SetLimit(opts.jobs())
 	env := cellEnv{ctx: ectx, seed: plan.Seed, workers: opts.jobs(), progress: prog}
-	for _, c := range cells {
+	// Each worker takes the next cell until none is left: a matrix has
+	// hundreds of thousands of cells, too many for a goroutine each.
+	var next atomic.Int64
+	for range min(opts.jobs(), len(cells)) {
 		eg.Go(func() error {
-			if err := ectx.Err(); err != nil {
-				return err
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= len(cells) {
+					return nil
+				}
+				if err := ectx.Err(); err != nil {
+					return err
+				}
+				c := cells[i]
+				c.in.s, c.in.px, c.in.py = c.src.sample(c.in.pair)
+				if c.in.px != nil {
+					c.in.src = c.src
+				}
+				err := measureSample(env, c.in)
+				c.in = cellInput{} // the cell's data is no longer needed
+				prog.cellDone()
+				if err != nil {
+					return err
+				}
 			}
-			c.in.s, c.in.px, c.in.py = c.src.sample(c.in.pair)
-			if c.in.px != nil {
-				c.in.src = c.src
-			}
-			out, err := measureSample(env, c.in)
-			c.in.s, c.in.px, c.in.py, c.in.src = sample{}, nil, nil, nil // the cell's data is no longer needed
-			c.out = out
-			prog.cellDone()
-			return err
 		})
 	}
 	if err := eg.Wait(); err != nil {
@@ -168,34 +211,40 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		return nil, err
 	}
 
-	var results []Result
-	for _, c := range cells {
-		results = append(results, c.out...)
-	}
+	clock.lap("compute")
+
 	adjustFamilies(plan, results)
-	byTest := map[string][]Result{}
-	for _, r := range results {
-		byTest[r.Test] = append(byTest[r.Test], r)
+	comp := &Computation{inputs: inputs, Results: results, clock: clock,
+		steps: make([]ledger.Step, len(plan.Tests)), tables: make([]renderedTable, len(plan.Tables))}
+	// The step hashes and the tables are independent of each other: on a
+	// large matrix each is seconds of encoding, so they run side by side.
+	var out errgroup.Group
+	out.SetLimit(opts.jobs())
+	for i, t := range plan.Tests {
+		out.Go(func() error {
+			step, err := stepRecord(plan, t, inputs, wheres[t.Pairing.Dataset.Name], byTest[t.Name])
+			comp.steps[i] = step
+			return err
+		})
 	}
-	comp := &Computation{inputs: inputs, Results: results}
-	for _, t := range plan.Tests {
-		step, err := stepRecord(plan, t, inputs, wheres[t.Pairing.Dataset.Name], byTest[t.Name])
-		if err != nil {
-			return nil, err
-		}
-		comp.steps = append(comp.steps, step)
+	for i, tb := range plan.Tables {
+		out.Go(func() error {
+			rows := byTest[tb.Tests[0].Name]
+			if len(tb.Tests) > 1 {
+				rows = nil
+				for _, t := range tb.Tests {
+					rows = append(rows, byTest[t.Name]...)
+				}
+			}
+			data, err := renderTable(plan, tb, rows)
+			comp.tables[i] = renderedTable{table: tb, data: data}
+			return err
+		})
 	}
-	for _, tb := range plan.Tables {
-		var rows []Result
-		for _, t := range tb.Tests {
-			rows = append(rows, byTest[t.Name]...)
-		}
-		data, err := renderTable(plan, tb, rows)
-		if err != nil {
-			return nil, err
-		}
-		comp.tables = append(comp.tables, renderedTable{table: tb, data: data})
+	if err := out.Wait(); err != nil {
+		return nil, err
 	}
+	clock.lap("tables")
 	return comp, nil
 }
 

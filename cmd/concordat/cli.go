@@ -134,8 +134,13 @@ func (c *command) parse(args []string, stdout, stderr io.Writer) int {
 func cmdRun(args []string, stdout, stderr io.Writer) int {
 	cmd := newCommand("run", "Compute every test of each recipe, write its tables and append one record to\nthe recipe's ledger (<recipe>.ledger.jsonl beside it). A failed run writes nothing.")
 	jobs := cmd.fs.IntP("jobs", "j", 0, "worker count (default: the number of CPUs); results do not depend on it")
+	timed := cmd.fs.Bool("timings", false, "print how long reading, computing, tables and writing took (to stderr)")
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
+	}
+	var timingsTo io.Writer
+	if *timed {
+		timingsTo = stderr
 	}
 	// The first Ctrl-C (or SIGTERM from a scheduler) cancels the run, which
 	// then writes nothing; once cancelled, the signals get their default
@@ -158,7 +163,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 			continue
 		}
 		rep, err := engine.Run(ctx, plan, engine.Options{
-			Jobs: *jobs, Version: toolVersion(), Stderr: stderr, Progress: terminal(stderr),
+			Jobs: *jobs, Version: toolVersion(), Stderr: stderr, Progress: terminal(stderr), Timings: timingsTo,
 		})
 		if err != nil {
 			code = max(code, reportError(stderr, path, plan, err))

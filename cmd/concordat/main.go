@@ -7,8 +7,35 @@
 //
 // Exit codes: 0 success; 1 a run failed (data error, I/O); 2 usage or recipe
 // error.
+//
+// For developers: CONCORDAT_CPUPROFILE=FILE writes a CPU profile of the
+// whole command to FILE (go tool pprof reads it).
 package main
 
-import "os"
+import (
+	"fmt"
+	"os"
+	"runtime/pprof"
+)
 
-func main() { os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)) }
+func main() {
+	path := os.Getenv("CONCORDAT_CPUPROFILE")
+	if path == "" {
+		os.Exit(run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr))
+	}
+	f, err := os.Create(path)
+	if err == nil {
+		err = pprof.StartCPUProfile(f)
+	}
+	if err != nil {
+		fmt.Fprintf(os.Stderr, "concordat: error: CPU profile: %v\n", err)
+		os.Exit(1)
+	}
+	code := run(os.Args[1:], os.Stdin, os.Stdout, os.Stderr)
+	pprof.StopCPUProfile()
+	if err := f.Close(); err != nil {
+		fmt.Fprintf(os.Stderr, "concordat: error: CPU profile: %v\n", err)
+		code = max(code, 1)
+	}
+	os.Exit(code)
+}
