@@ -3,12 +3,9 @@ package engine
 import (
 	"fmt"
 	"math"
-	"slices"
 	"strings"
 	"sync"
 	"sync/atomic"
-
-	"golang.org/x/sync/errgroup"
 
 	"concordat/engine/stats"
 	"concordat/io/dataset"
@@ -37,19 +34,14 @@ type cellSource struct {
 
 	cols map[string]*column
 
-	// The correlation matrices of the shared columns, computed once when a
-	// pairing has enough pairs to make that cheaper than pair by pair.
-	matrixOnce sync.Once
-	matrixErr  error
-	index      map[string]int // shared column → row of the matrices
-	rhoMatrix  []float64      // Spearman: Pearson's r of the columns' ranks
-	rMatrix    []float64      // Pearson's r of the values, nil when any is infinite
+	// base is cols as shared columns: all of them when listwise, those
+	// without missing cells when pairwise (engine/views.go).
+	base *shared
+	// viewOf gives, under pairwise deletion, the missing-pattern view of
+	// each pair with missing cells whose rows one view holds (nil: the pair
+	// is copied by pairUp).
+	viewOf map[recipe.Pair]*patternView
 }
-
-// matrixMinPairs is the number of pairs from which a group's correlations
-// come from one correlation matrix (a blocked rank-k update) rather than
-// pair by pair; below it the matrix costs more than it saves.
-const matrixMinPairs = 16
 
 // column is one variable of a cellSource, over the source's shared rows
 // (the complete rows when listwise, the group's rows otherwise).
@@ -199,6 +191,10 @@ func newCellSource(t *recipe.Test, tbl *dataset.Table, g group) *cellSource {
 		}
 		src.cols[name] = c
 	}
+	src.base = src.baseShared()
+	if !listwise && len(t.Controls) == 0 && patternViewsOn {
+		src.viewOf = src.patternViews()
+	}
 	return src
 }
 
@@ -229,27 +225,42 @@ func listwiseNote(names []string, missing map[string]int, total, kept int) strin
 		total-kept, total, strings.Join(parts, ", "))
 }
 
-// sample returns the cell's sample for pair, and the shared columns of x
-// and y when the sample is a view of them (nil, nil when it is a copy).
-func (src *cellSource) sample(pair recipe.Pair) (sample, *column, *column) {
+// sample returns the cell's sample for pair, with the shared columns of x
+// and y and the set they belong to when the sample is a view of them (nil,
+// nil, nil when it is the pair's own copy).
+func (src *cellSource) sample(pair recipe.Pair) (sample, *column, *column, *shared) {
 	t := src.test
 	cx, cy := src.cols[pair.X], src.cols[pair.Y]
-	shared := t.Pairing.Missing == recipe.Listwise ||
-		(cx.missing == 0 && cy.missing == 0 && len(t.Controls) == 0)
-	if !shared {
-		s := pairUp(src.tbl, t, pair, src.rows)
-		s.groupNote = src.note
-		return s, nil, nil
+	listwise := t.Pairing.Missing == recipe.Listwise
+	if listwise || (cx.missing == 0 && cy.missing == 0 && len(t.Controls) == 0) {
+		s := sample{x: cx.values, y: cy.values, groupNote: src.note}
+		for _, name := range t.Controls {
+			s.z = append(s.z, src.cols[name].values)
+		}
+		if listwise {
+			s.dropped = src.total - src.kept
+			s.dropNote = src.dropNote
+		}
+		return s, cx, cy, src.base
 	}
-	s := sample{x: cx.values, y: cy.values, groupNote: src.note}
-	for _, name := range t.Controls {
-		s.z = append(s.z, src.cols[name].values)
+	if v := src.viewOf[pair]; v != nil {
+		sh := v.columns(src)
+		vx, vy := sh.cols[pair.X], sh.cols[pair.Y]
+		s := sample{x: vx.values, y: vy.values, groupNote: src.note}
+		// The view's rows are those of the column missing more; the other
+		// column's missing rows are among them.
+		var missX, missY, missBoth int
+		if cx.missing >= cy.missing {
+			missX, missBoth = cx.missing-cy.missing, cy.missing
+		} else {
+			missY, missBoth = cy.missing-cx.missing, cx.missing
+		}
+		s.dropped, s.dropNote = pairDropNote(t, pair, src.total, pairMisses{x: missX, y: missY, both: missBoth})
+		return s, vx, vy, sh
 	}
-	if t.Pairing.Missing == recipe.Listwise {
-		s.dropped = src.total - src.kept
-		s.dropNote = src.dropNote
-	}
-	return s, cx, cy
+	s := pairUp(src.tbl, t, pair, src.rows)
+	s.groupNote = src.note
+	return s, nil, nil, nil
 }
 
 // prepare computes the column's shared statistics once; safe for
@@ -274,93 +285,6 @@ func (c *column) prepare(rule stats.TieRule) *column {
 		c.prepared.Store(true)
 	})
 	return c
-}
-
-// matrixValue returns measure m (Spearman or Pearson, no controls) of pair
-// from the group's correlation matrix when the pairing is large enough to
-// have one and both columns are shared; ok is false otherwise. The matrix is
-// computed on first use, by whichever cell needs it first.
-func (src *cellSource) matrixValue(env cellEnv, m stats.Measure, pair recipe.Pair) (v float64, ok bool, err error) {
-	t := src.test
-	if len(t.Controls) > 0 || len(t.Pairing.Pairs) < matrixMinPairs || (m != stats.Spearman && m != stats.PearsonR) {
-		return 0, false, nil
-	}
-	src.matrixOnce.Do(func() { src.matrixErr = src.buildMatrices(env) })
-	if src.matrixErr != nil {
-		return 0, false, src.matrixErr
-	}
-	i, okX := src.index[pair.X]
-	j, okY := src.index[pair.Y]
-	if !okX || !okY {
-		return 0, false, nil
-	}
-	k := len(src.index)
-	switch {
-	case m == stats.Spearman && src.rhoMatrix != nil:
-		return src.rhoMatrix[i*k+j], true, nil
-	case m == stats.PearsonR && src.rMatrix != nil:
-		return src.rMatrix[i*k+j], true, nil
-	}
-	return 0, false, nil
-}
-
-// buildMatrices computes the correlation matrices of the shared columns for
-// the measures the test asks for.
-func (src *cellSource) buildMatrices(env cellEnv) error {
-	t := src.test
-	listwise := t.Pairing.Missing == recipe.Listwise
-	var names []string
-	for _, name := range pairingColumns(t.Pairing) {
-		if c := src.cols[name]; listwise || c.missing == 0 {
-			names = append(names, name)
-		}
-	}
-	if len(names) < 2 || len(src.cols[names[0]].values) < minPairs {
-		return nil
-	}
-	src.index = make(map[string]int, len(names))
-	for i, name := range names {
-		src.index[name] = i
-	}
-	if slices.Contains(t.Measures, stats.Spearman) {
-		// Every cell of the group waits for the matrix: rank its columns
-		// on all workers.
-		var eg errgroup.Group
-		eg.SetLimit(env.workers)
-		ranks := make([][]float64, len(names))
-		for i, name := range names {
-			eg.Go(func() error {
-				if err := env.ctx.Err(); err != nil {
-					return err
-				}
-				ranks[i] = src.cols[name].prepare(t.Ties.Rule).ranks
-				return nil
-			})
-		}
-		if err := eg.Wait(); err != nil {
-			return err
-		}
-		m, err := stats.CorrelationMatrix(env.ctx, ranks, env.workers)
-		if err != nil {
-			return err
-		}
-		src.rhoMatrix = m
-	}
-	if slices.Contains(t.Measures, stats.PearsonR) {
-		vals := make([][]float64, len(names))
-		for i, name := range names {
-			vals[i] = src.cols[name].values
-			if hasInf(vals[i]) {
-				return nil // Pearson's r is undefined there: pair by pair says why
-			}
-		}
-		m, err := stats.CorrelationMatrix(env.ctx, vals, env.workers)
-		if err != nil {
-			return err
-		}
-		src.rMatrix = m
-	}
-	return nil
 }
 
 // isConstant is constant() for the column's values (v is ignored: it is

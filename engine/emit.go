@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"time"
 
+	"concordat/engine/bigmem"
 	"concordat/engine/ledger"
 	"concordat/engine/stats"
 	"concordat/io/dataset"
@@ -148,22 +149,21 @@ func adjustedHeader(rows []Result) string {
 }
 
 func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, error) {
-	var buf bytes.Buffer
 	// About what a row takes: growing the buffer by doubling would copy a
-	// large table several times over.
+	// large table several times over (and fault in new memory each time).
 	perRow := map[recipe.TableFormat]int{recipe.Markdown: 256, recipe.CSV: 512, recipe.JSON: 1024}[tb.Format]
-	buf.Grow(perRow * (len(rows) + 1))
+	buf := bytes.NewBuffer(bigmem.Make[byte](0, perRow*(len(rows)+1)))
 	var err error
 	switch tb.Format {
 	case recipe.Markdown:
-		err = render.Encode(&buf, readableTable(plan.Title, rows), render.Markdown, tb.Digits)
+		err = render.Encode(buf, readableTable(plan.Title, rows), render.Markdown, tb.Digits)
 	case recipe.CSV:
 		// CSV and JSON are the machine-readable result record: they keep
 		// every digit (shortest round-trip) so no number is lost to
 		// rounding; `digits` shapes the human-facing Markdown table.
-		err = render.Encode(&buf, fullTable(plan.Title, rows), render.CSV, -1)
+		err = render.Encode(buf, fullTable(plan.Title, rows), render.CSV, -1)
 	case recipe.JSON:
-		err = render.Encode(&buf, fullTable(plan.Title, rows), render.JSON, -1)
+		err = render.Encode(buf, fullTable(plan.Title, rows), render.JSON, -1)
 	default:
 		panic(fmt.Sprintf("engine: table format %v has no renderer", tb.Format))
 	}

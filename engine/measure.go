@@ -53,7 +53,7 @@ type cellInput struct {
 	group  string
 	s      sample
 	px, py *column
-	src    *cellSource // the group's source when px and py are shared
+	sh     *shared     // the shared columns px and py belong to
 	dst    []Result    // where the results go: one per measure of the test
 }
 
@@ -138,7 +138,7 @@ func measureSample(env cellEnv, c cellInput) error {
 			choices[i] = pMethodFor(t, m, s, tied, arrangements)
 			fromMatrix := false
 			if c.px != nil && k == 0 {
-				v, ok, err := c.src.matrixValue(env, m, pair)
+				v, ok, err := c.sh.matrixValue(env, t, m, pair)
 				if err != nil {
 					return err
 				}

@@ -191,10 +191,7 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 					return err
 				}
 				c := cells[i]
-				c.in.s, c.in.px, c.in.py = c.src.sample(c.in.pair)
-				if c.in.px != nil {
-					c.in.src = c.src
-				}
+				c.in.s, c.in.px, c.in.py, c.in.sh = c.src.sample(c.in.pair)
 				err := measureSample(env, c.in)
 				c.in = cellInput{} // the cell's data is no longer needed
 				prog.cellDone()
@@ -400,27 +397,37 @@ func pairUp(tbl *dataset.Table, t *recipe.Test, pair recipe.Pair, rows []int) sa
 			s.z[j] = append(s.z[j], c[i])
 		}
 	}
-	s.dropped = total - len(s.x)
-	if s.dropped > 0 {
-		var why []string
-		if missX > 0 {
-			why = append(why, fmt.Sprintf("%d missing %s", missX, pair.X))
-		}
-		if missY > 0 {
-			why = append(why, fmt.Sprintf("%d missing %s", missY, pair.Y))
-		}
-		if missBoth > 0 {
-			why = append(why, fmt.Sprintf("%d missing both", missBoth))
-		}
-		if missOther > 0 {
-			why = append(why, fmt.Sprintf("%d missing another column of the pairing (listwise)", missOther))
-		}
-		if missControl > 0 {
-			why = append(why, fmt.Sprintf("%d missing a control (%s)", missControl, strings.Join(t.Controls, ", ")))
-		}
-		s.dropNote = fmt.Sprintf("%d of %d rows dropped: %s", s.dropped, total, strings.Join(why, ", "))
-	}
+	s.dropped, s.dropNote = pairDropNote(t, pair, total, pairMisses{missX, missY, missBoth, missOther, missControl})
 	return s
+}
+
+// pairMisses counts a pair's dropped rows by reason.
+type pairMisses struct{ x, y, both, other, control int }
+
+// pairDropNote returns how many of the group's total rows a pair dropped
+// and the note that says why ("" when none were).
+func pairDropNote(t *recipe.Test, pair recipe.Pair, total int, m pairMisses) (int, string) {
+	dropped := m.x + m.y + m.both + m.other + m.control
+	if dropped == 0 {
+		return 0, ""
+	}
+	var why []string
+	if m.x > 0 {
+		why = append(why, fmt.Sprintf("%d missing %s", m.x, pair.X))
+	}
+	if m.y > 0 {
+		why = append(why, fmt.Sprintf("%d missing %s", m.y, pair.Y))
+	}
+	if m.both > 0 {
+		why = append(why, fmt.Sprintf("%d missing both", m.both))
+	}
+	if m.other > 0 {
+		why = append(why, fmt.Sprintf("%d missing another column of the pairing (listwise)", m.other))
+	}
+	if m.control > 0 {
+		why = append(why, fmt.Sprintf("%d missing a control (%s)", m.control, strings.Join(t.Controls, ", ")))
+	}
+	return dropped, fmt.Sprintf("%d of %d rows dropped: %s", dropped, total, strings.Join(why, ", "))
 }
 
 // pairingColumns lists the variables of a pairing (not its `by` column).
