@@ -53,8 +53,8 @@ type cellInput struct {
 	group  string
 	s      sample
 	px, py *column
-	sh     *shared     // the shared columns px and py belong to
-	dst    []Result    // where the results go: one per measure of the test
+	sh     *shared  // the shared columns px and py belong to
+	dst    []Result // where the results go: one per measure of the test
 }
 
 // measureSample computes every measure of the cell's test on its sample,
