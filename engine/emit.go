@@ -8,8 +8,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
-	"slices"
-	"strconv"
 	"time"
 
 	"concordat/engine/bigmem"
@@ -20,9 +18,13 @@ import (
 	"concordat/recipe"
 )
 
+// renderedTable is one output file ready to be written: a table, or a
+// figure (whose format is "svg" or "png").
 type renderedTable struct {
-	table *recipe.Table
-	data  []byte
+	name   string // the table or figure block's label
+	path   string
+	format string
+	data   []byte
 }
 
 // fullTable lays results out as the result record: one column per contract
@@ -54,84 +56,6 @@ func optText(s string) render.Cell {
 	return render.Text(s)
 }
 
-// readableTable is the Markdown shape: the columns a reader of a paper
-// needs, with warnings numbered in notes under the table. The interval's
-// level heads its column when all rows share it, else it gets a column of
-// its own; the alternative gets a column when any row is one-sided, so a
-// one-sided p-value never passes for a two-sided one.
-func readableTable(title string, rows []Result) *render.Table {
-	level, sameLevel := commonLevel(rows)
-	oneSided := slices.ContainsFunc(rows, func(r Result) bool { return r.Alternative != stats.TwoSided.String() })
-	adjusted := slices.ContainsFunc(rows, func(r Result) bool { return r.AdjustMethod != stats.AdjustNone.String() })
-	partial := slices.ContainsFunc(rows, func(r Result) bool { return len(r.Controls) > 0 })
-
-	cols := []string{"test", "x", "y", "group", "measure"}
-	if partial {
-		cols = append(cols, "controls")
-	}
-	cols = append(cols, "n", "estimate")
-	if sameLevel {
-		cols = append(cols, render.Percent(level)+"% CI")
-	} else {
-		cols = append(cols, "CI", "level")
-	}
-	if oneSided {
-		cols = append(cols, "alternative")
-	}
-	cols = append(cols, "p", "p method")
-	if adjusted {
-		cols = append(cols, adjustedHeader(rows))
-	}
-	cols = append(cols, "notes")
-	t := &render.Table{Title: title, Columns: cols}
-
-	noteIndex := map[string]int{}
-	for _, r := range rows {
-		var refs []string
-		for _, w := range r.Warnings {
-			k, ok := noteIndex[w]
-			if !ok {
-				t.Notes = append(t.Notes, w)
-				k = len(t.Notes)
-				noteIndex[w] = k
-			}
-			refs = append(refs, strconv.Itoa(k))
-		}
-		row := []render.Cell{
-			render.Text(r.Test), render.Text(r.X), render.Text(r.Y), render.Text(r.Group),
-			render.Text(r.Measure),
-		}
-		if partial {
-			row = append(row, render.List(r.Controls))
-		}
-		row = append(row, render.Int(int64(r.N)), render.Real(r.Estimate), render.Interval(r.CILow, r.CIHigh))
-		if !sameLevel {
-			if math.IsNaN(r.CILevel) {
-				row = append(row, render.NoText())
-			} else {
-				row = append(row, render.Text(render.Percent(r.CILevel)+"%"))
-			}
-		}
-		if oneSided {
-			row = append(row, render.Text(r.Alternative))
-		}
-		row = append(row, render.Prob(r.PValue), optText(r.PMethod))
-		if adjusted {
-			adj := render.Prob(r.PAdjusted)
-			if r.AdjustMethod == stats.AdjustNone.String() {
-				adj = render.Text("")
-			}
-			row = append(row, adj)
-		}
-		row = append(row, render.List(refs))
-		t.Rows = append(t.Rows, row)
-	}
-	for i := range t.Notes {
-		t.Notes[i] = fmt.Sprintf("[%d] %s", i+1, t.Notes[i])
-	}
-	return t
-}
-
 // adjustedHeader names the adjusted p-value column after its method when
 // every adjusted row shares one, e.g. "p adjusted (holm)".
 func adjustedHeader(rows []Result) string {
@@ -148,26 +72,26 @@ func adjustedHeader(rows []Result) string {
 	return "p adjusted (" + method + ")"
 }
 
-func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result) ([]byte, error) {
+// renderTable writes one table block's results in its format (present.go
+// lays them out). The files of result records (csv, tsv, json, parquet)
+// keep every digit (shortest round-trip), so no number is lost to
+// rounding; digits and style shape the readable tables.
+func renderTable(plan *recipe.Plan, tb *recipe.Table, rows []Result, figs map[string]renderedFigure) ([]byte, error) {
 	// About what a row takes: growing the buffer by doubling would copy a
 	// large table several times over (and fault in new memory each time).
-	perRow := map[recipe.TableFormat]int{recipe.Markdown: 256, recipe.CSV: 512, recipe.JSON: 1024}[tb.Format]
-	buf := bytes.NewBuffer(bigmem.Make[byte](0, perRow*(len(rows)+1)))
-	var err error
+	perRow := 256
 	switch tb.Format {
-	case recipe.Markdown:
-		err = render.Encode(buf, readableTable(plan.Title, rows), render.Markdown, tb.Digits)
-	case recipe.CSV:
-		// CSV and JSON are the machine-readable result record: they keep
-		// every digit (shortest round-trip) so no number is lost to
-		// rounding; `digits` shapes the human-facing Markdown table.
-		err = render.Encode(buf, fullTable(plan.Title, rows), render.CSV, -1)
+	case recipe.CSV, recipe.TSV:
+		perRow = 512
 	case recipe.JSON:
-		err = render.Encode(buf, fullTable(plan.Title, rows), render.JSON, -1)
-	default:
-		panic(fmt.Sprintf("engine: table format %v has no renderer", tb.Format))
+		perRow = 1024
 	}
-	if err != nil {
+	buf := bytes.NewBuffer(bigmem.Make[byte](0, perRow*(len(rows)+1)))
+	style := styleOf(tb)
+	if !tb.Format.Readable() {
+		style = render.Style{Numbers: render.Plain, Digits: -1}
+	}
+	if err := render.Write(buf, tableDocument(plan, tb, rows, figs), formatOf(tb.Format), style); err != nil {
 		return nil, fmt.Errorf("render table %q: %w", tb.Name, err)
 	}
 	return buf.Bytes(), nil
@@ -243,13 +167,13 @@ func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Option
 	}()
 	var outputs []ledger.Output
 	for _, rt := range c.tables {
-		if err := batch.Add(rt.table.Path, rt.data); err != nil {
-			return nil, fmt.Errorf("write table %q: %w", rt.table.Name, err)
+		if err := batch.Add(rt.path, rt.data); err != nil {
+			return nil, fmt.Errorf("write %q: %w", rt.name, err)
 		}
 		sum := sha256.Sum256(rt.data)
 		outputs = append(outputs, ledger.Output{
-			Table: rt.table.Name, Path: relPath(plan.Dir, rt.table.Path),
-			Format: rt.table.Format.String(), SHA256: hex.EncodeToString(sum[:]), Bytes: int64(len(rt.data)),
+			Table: rt.name, Path: relPath(plan.Dir, rt.path),
+			Format: rt.format, SHA256: hex.EncodeToString(sum[:]), Bytes: int64(len(rt.data)),
 		})
 	}
 	recipeSum := sha256.Sum256(plan.Source)

@@ -211,9 +211,8 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	clock.lap("compute")
 
 	adjustFamilies(plan, results)
-	comp := &Computation{inputs: inputs, Results: results, clock: clock,
-		steps: make([]ledger.Step, len(plan.Tests)), tables: make([]renderedTable, len(plan.Tables))}
-	// The step hashes and the tables are independent of each other: on a
+	comp := &Computation{inputs: inputs, Results: results, clock: clock, steps: make([]ledger.Step, len(plan.Tests))}
+	// The step hashes and the outputs are independent of each other: on a
 	// large matrix each is seconds of encoding, so they run side by side.
 	var out errgroup.Group
 	out.SetLimit(opts.jobs())
@@ -224,20 +223,12 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 			return err
 		})
 	}
-	for i, tb := range plan.Tables {
-		out.Go(func() error {
-			rows := byTest[tb.Tests[0].Name]
-			if len(tb.Tests) > 1 {
-				rows = nil
-				for _, t := range tb.Tests {
-					rows = append(rows, byTest[t.Name]...)
-				}
-			}
-			data, err := renderTable(plan, tb, rows)
-			comp.tables[i] = renderedTable{table: tb, data: data}
-			return err
-		})
-	}
+	// Tables and figures (engine/figure.go), rendered but not yet written.
+	out.Go(func() error {
+		var err error
+		comp.tables, err = renderOutputs(plan, byTest, tables, groupsOf, opts.jobs())
+		return err
+	})
 	if err := out.Wait(); err != nil {
 		return nil, err
 	}

@@ -18,7 +18,7 @@ var (
 	topSpec = spec{
 		where:  "at the top level of a recipe",
 		attrs:  []string{"title", "seed"},
-		blocks: []string{"dataset", "pairing", "ties", "test", "table"},
+		blocks: []string{"dataset", "pairing", "ties", "test", "table", "figure"},
 	}
 	datasetSpec = spec{
 		where:    "in a dataset block",
@@ -28,9 +28,8 @@ var (
 		exprs:    []string{"where"},
 	}
 	columnSpec = spec{
-		where:    "in a column block",
-		attrs:    []string{"levels"},
-		required: []string{"levels"},
+		where: "in a column block",
+		attrs: []string{"levels", "label"},
 	}
 	pairingSpec = spec{
 		where:    "in a pairing block",
@@ -52,8 +51,9 @@ var (
 		attrs: []string{"level", "method", "resamples"},
 	}
 	tableSpec = spec{
-		where:    "in a table block",
-		attrs:    []string{"tests", "format", "path", "digits"},
+		where: "in a table block",
+		attrs: []string{"tests", "format", "path", "digits",
+			"style", "layout", "columns", "groups", "show", "marks", "caption", "label", "figures"},
 		required: []string{"tests", "path"},
 	}
 )
@@ -100,13 +100,20 @@ func (d *decoder) decodeRecipe(body *hclsyntax.Body) *Plan {
 			plan.Tests = append(plan.Tests, t)
 		}
 	}
+	figures := newNames[*Figure]("figure", "figure", "figures")
+	for _, b := range byType["figure"] {
+		if f := d.decodeFigure(b, tests); figures.add(d, b, f) {
+			plan.Figures = append(plan.Figures, f)
+		}
+	}
 	tables := newNames[*Table]("table", "table", "tables")
 	for _, b := range byType["table"] {
-		if t := d.decodeTable(b, tests); tables.add(d, b, t) {
+		if t := d.decodeTable(b, tests, figures); tables.add(d, b, t) {
 			plan.Tables = append(plan.Tables, t)
 		}
 	}
 	d.checkOutputs(plan)
+	d.checkFigureOutputs(plan)
 	return plan
 }
 
@@ -172,7 +179,9 @@ func (d *decoder) decodeDataset(b *hclsyntax.Block) *Dataset {
 		seen[name] = cb.DefRange()
 		col := d.decodeColumn(cb, ds)
 		ds.Columns = append(ds.Columns, col)
-		ds.Levels[name] = col.Levels
+		if col.Levels != nil {
+			ds.Levels[name] = col.Levels
+		}
 	}
 
 	// The filter is read last: a column with levels is compared by them.
@@ -228,6 +237,7 @@ func describeText(s string) string {
 func (d *decoder) decodeColumn(b *hclsyntax.Block, ds *Dataset) *ColumnDecl {
 	c := d.blockContent(b, columnSpec)
 	col := &ColumnDecl{Name: b.Labels[0], DeclRange: b.DefRange()}
+	d.decodeColumnLabel(c, col, b)
 	a := c.attrs["levels"]
 	if a == nil {
 		return col
@@ -623,7 +633,7 @@ func (d *decoder) decodeInterval(b *hclsyntax.Block) *Interval {
 	return iv
 }
 
-func (d *decoder) decodeTable(b *hclsyntax.Block, tests *names[*Test]) *Table {
+func (d *decoder) decodeTable(b *hclsyntax.Block, tests *names[*Test], figures *names[*Figure]) *Table {
 	c := d.blockContent(b, tableSpec)
 	t := &Table{Name: b.Labels[0], Digits: defaultDigits, DeclRange: b.DefRange()}
 	if a := c.attrs["tests"]; a != nil {
@@ -668,18 +678,21 @@ func (d *decoder) decodeTable(b *hclsyntax.Block, tests *names[*Test]) *Table {
 			d.checkWord(extWord, a.Expr.Range(), &ctx, tableFormats)
 		default:
 			d.errorf(a.Expr.Range(), &ctx, "Unknown table format",
-				"The format of %s cannot be told from its extension. Name the file with .md, .csv or .json, "+
-					"or add format = \"markdown\" (or \"csv\", \"json\") to the table block.", quote(t.PathAsWritten))
+				"The format of %s cannot be told from its extension. Name the file with .md, .csv, .json, .tsv, .tex, .html or .parquet, "+
+					"or add format = \"markdown\" (or \"csv\", \"json\", \"tsv\", \"latex\", \"html\", \"parquet\") to the table block.", quote(t.PathAsWritten))
 		}
 	}
 	if a := c.attrs["digits"]; a != nil {
 		n, _ := d.integer(a, 0, maxDigits)
 		t.Digits = int(n)
 	}
+	d.decodePresent(b, c, t, figures)
 	return t
 }
 
-var tableFormatWords = map[string]TableFormat{"markdown": Markdown, "csv": CSV, "json": JSON}
+var tableFormatWords = map[string]TableFormat{
+	"markdown": Markdown, "csv": CSV, "json": JSON, "tsv": TSV, "latex": LaTeX, "html": HTML, "parquet": Parquet,
+}
 
 // tableFormatOf infers a table format from a file extension. For an
 // extension of a format this version cannot write yet it returns 0 and the
@@ -692,14 +705,14 @@ func tableFormatOf(p string) (TableFormat, string) {
 		return CSV, ""
 	case ".json":
 		return JSON, ""
-	case ".tsv":
-		return 0, "tsv"
+	case ".tsv", ".tab":
+		return TSV, ""
 	case ".tex":
-		return 0, "latex"
+		return LaTeX, ""
 	case ".html", ".htm":
-		return 0, "html"
+		return HTML, ""
 	case ".parquet":
-		return 0, "parquet"
+		return Parquet, ""
 	}
 	return 0, ""
 }

@@ -60,7 +60,7 @@ type spec struct {
 
 // labelCount says how many labels (names) each block type takes.
 var labelCount = map[string]int{
-	"dataset": 1, "pairing": 1, "ties": 1, "test": 1, "table": 1,
+	"dataset": 1, "pairing": 1, "ties": 1, "test": 1, "table": 1, "figure": 1,
 	"column": 1, "interval": 0,
 }
 

@@ -41,7 +41,14 @@ func (p *Plan) Describe(w io.Writer) error {
 			b.WriteString("# sha256: not pinned\n")
 		}
 		for _, c := range ds.Columns {
-			fmt.Fprintf(&b, "\ncolumn %s {\nlevels = %s\n}\n", quote(c.Name), hclList(c.Levels))
+			fmt.Fprintf(&b, "\ncolumn %s {\n", quote(c.Name))
+			if c.Levels != nil {
+				fmt.Fprintf(&b, "levels = %s\n", hclList(c.Levels))
+			}
+			if c.Label != "" {
+				fmt.Fprintf(&b, "label = %s\n", quote(c.Label))
+			}
+			b.WriteString("}\n")
 		}
 		b.WriteString("}\n")
 	}
@@ -111,7 +118,12 @@ func (p *Plan) Describe(w io.Writer) error {
 		b.WriteString("tests = " + hclList(names) + "\n")
 		b.WriteString("format = " + quote(t.Format.String()) + "\n")
 		b.WriteString("path = " + quote(t.PathAsWritten) + resolvedNote(t.PathAsWritten, t.Path) + "\n")
-		b.WriteString("digits = " + strconv.Itoa(t.Digits) + "\n}\n")
+		b.WriteString("digits = " + strconv.Itoa(t.Digits) + "\n")
+		t.Present.describe(&b)
+		b.WriteString("}\n")
+	}
+	for _, f := range p.Figures {
+		f.describe(&b)
 	}
 
 	_, err := w.Write(hclwrite.Format([]byte(b.String())))
@@ -168,7 +180,7 @@ func (p *Plan) Settings() any {
 			d.Where = ds.Where.Text
 		}
 		for _, c := range ds.Columns {
-			d.Columns = append(d.Columns, columnSettings{Name: c.Name, Levels: nonNil(c.Levels)})
+			d.Columns = append(d.Columns, columnSettings{Name: c.Name, Levels: nonNil(c.Levels), Label: c.Label})
 		}
 		s.Datasets = append(s.Datasets, d)
 	}
@@ -205,7 +217,11 @@ func (p *Plan) Settings() any {
 		}
 		s.Tables = append(s.Tables, tableSettings{
 			Name: t.Name, Tests: names, Format: t.Format.String(), Path: t.PathAsWritten, Digits: t.Digits,
+			Present: t.Present.settings(),
 		})
+	}
+	for _, f := range p.Figures {
+		s.Figures = append(s.Figures, f.settings())
 	}
 	s.Datasets = nonNil(s.Datasets)
 	s.Pairings = nonNil(s.Pairings)
@@ -230,6 +246,9 @@ type planSettings struct {
 	Pairings []pairingSettings `json:"pairings"`
 	Tests    []testSettings    `json:"tests"`
 	Tables   []tableSettings   `json:"tables"`
+	// Figures are left out when there are none, so that the settings of
+	// a recipe without figures are as they always were.
+	Figures []figureSettings `json:"figures,omitempty"`
 }
 
 type datasetSettings struct {
@@ -247,6 +266,7 @@ type datasetSettings struct {
 type columnSettings struct {
 	Name   string   `json:"name"`
 	Levels []string `json:"levels"`
+	Label  string   `json:"label,omitempty"` // left out when there is none, as before labels existed
 }
 
 type pairingSettings struct {
@@ -292,4 +312,7 @@ type tableSettings struct {
 	Format string   `json:"format"`
 	Path   string   `json:"path"`
 	Digits int      `json:"digits"`
+	// Present is left out for a table with the default layout and style,
+	// so that the settings of such a table are as they always were.
+	Present *presentSettings `json:"present,omitempty"`
 }

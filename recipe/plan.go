@@ -27,6 +27,7 @@ type Plan struct {
 	Pairings []*Pairing
 	Tests    []*Test
 	Tables   []*Table
+	Figures  []*Figure // figure blocks, in recipe order (present.go)
 }
 
 // LedgerPath returns where the run ledger of this recipe lives:
@@ -67,10 +68,12 @@ type Dataset struct {
 	SHA256Range hcl.Range // where the pin was written, for "data file changed" diagnostics
 }
 
-// ColumnDecl is one `column "name" { levels = [...] }` block.
+// ColumnDecl is one `column "name" { levels = [...], label = "..." }`
+// block: at least one of the two.
 type ColumnDecl struct {
 	Name        string
-	Levels      []string
+	Levels      []string  // nil when the block gives only a label
+	Label       string    // the human label for tables and figures; "" for none
 	DeclRange   hcl.Range // the block header
 	LevelsRange hcl.Range // the levels list, for "label not in levels" data errors
 }
@@ -244,7 +247,16 @@ const (
 	Markdown             // a pipe table
 	CSV                  // comma-separated, one row per result record
 	JSON                 // an array of result records
+	TSV                  // tab-separated, one row per result record
+	LaTeX                // a booktabs table environment
+	HTML                 // a standalone page, with figures
+	Parquet              // typed result records
 )
+
+// Readable reports whether f is for people (markdown, latex, html), whose
+// tables take a layout, a number style and labels, rather than a file of
+// result records for programs (csv, tsv, json, parquet).
+func (f TableFormat) Readable() bool { return f == Markdown || f == LaTeX || f == HTML }
 
 // String returns the recipe word for the format.
 func (f TableFormat) String() string {
@@ -255,6 +267,14 @@ func (f TableFormat) String() string {
 		return "csv"
 	case JSON:
 		return "json"
+	case TSV:
+		return "tsv"
+	case LaTeX:
+		return "latex"
+	case HTML:
+		return "html"
+	case Parquet:
+		return "parquet"
 	}
 	return fmt.Sprintf("TableFormat(%d)", int(f))
 }
@@ -266,8 +286,12 @@ type Table struct {
 	Format        TableFormat // from the extension unless `format` says otherwise
 	Path          string      // resolved like Dataset.Path
 	PathAsWritten string
-	Digits        int // decimal places; default 3, 0..15
+	Digits        int // decimal places; default 3 (2 with style = "apa"), 0..15
 	DeclRange     hcl.Range
+
+	// How the table is laid out and written (present.go); the zero value
+	// of each is its default.
+	Present
 
 	pathRange hcl.Range // where the path was written
 }

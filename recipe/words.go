@@ -35,9 +35,7 @@ var (
 	dataFormats = &vocab{noun: "dataset format", plural: "formats",
 		words: []string{"csv", "tsv", "parquet"}}
 	tableFormats = &vocab{noun: "table format", plural: "formats",
-		words: []string{"markdown", "csv", "json"},
-		later: []string{"tsv", "latex", "html", "parquet"},
-		only:  "markdown, csv and json only"}
+		words: []string{"markdown", "csv", "json", "tsv", "latex", "html", "parquet"}}
 )
 
 func (v *vocab) accepts(w string) bool  { return contains(v.words, w) }

@@ -12,7 +12,13 @@ dataset "harvest" {
   # Fruit grades are ordinal text: list them from low to high.
   column "grade" {
     levels = ["cull", "standard", "fancy", "extra fancy"]
+    label  = "Fruit grade"
   }
+  # Labels name the variables in readable tables and figures.
+  column "shade_pct" { label = "Canopy shade (%)" }
+  column "tree_age" { label = "Tree age (years)" }
+  column "sugar_brix" { label = "Sugar content (°Brix)" }
+  column "orchard_block" { label = "Orchard block" }
 }
 
 pairing "shade_vs_quality" {
@@ -92,4 +98,45 @@ table "quality_records" {
 table "grade_and_partial" {
   tests = ["grade_ordinal", "sugar_given_age"]
   path  = "out/orchard_grade.md"
+}
+
+# For the manuscript: an APA-style LaTeX table (booktabs), one block of rows
+# per orchard block, ready for \input.
+table "quality_latex" {
+  tests   = ["shade_quality"]
+  path    = "out/orchard_quality.tex"
+  style   = "apa"
+  groups  = "blocks"
+  columns = ["x", "y", "measure", "n", "estimate", "ci", "p_value", "p_adjusted"]
+  caption = "Canopy shade, tree age and fruit quality by orchard block"
+  label   = "tab:orchard-quality"
+}
+
+# For the team: one HTML page with the APA report of each Spearman result
+# and the figures, which need no other file.
+table "quality_report" {
+  tests   = ["shade_quality"]
+  path    = "out/orchard_report.html"
+  style   = "apa"
+  groups  = "blocks"
+  columns = ["x", "y", "measure", "n", "estimate", "ci", "p_value", "p_adjusted", "report", "notes"]
+  figures = ["shade_sugar_ranks", "shade_grade"]
+}
+
+# The ranks of sugar against the ranks of shade, with the best monotone fit.
+figure "shade_sugar_ranks" {
+  test = "shade_quality"
+  kind = "rank_scatter"
+  x    = "shade_pct"
+  y    = "sugar_brix"
+  path = "out/orchard_shade_sugar.svg"
+}
+
+# Fruit grade against shade, the values themselves (grades on their levels).
+figure "shade_grade" {
+  test = "shade_quality"
+  kind = "scatter"
+  x    = "shade_pct"
+  y    = "grade"
+  path = "out/orchard_shade_grade.png"
 }

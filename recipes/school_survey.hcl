@@ -10,10 +10,15 @@ dataset "survey" {
 
   column "enjoys_reading" {
     levels = ["strongly disagree", "disagree", "neutral", "agree", "strongly agree"]
+    label  = "Enjoys reading"
   }
   column "feels_rested" {
     levels = ["strongly disagree", "disagree", "neutral", "agree", "strongly agree"]
+    label  = "Feels rested"
   }
+  column "sleep_hours" { label = "Sleep (h)" }
+  column "screen_time_min" { label = "Screen time (min)" }
+  column "homework_hours" { label = "Homework (h)" }
 }
 
 # Every pair among these columns: a correlation matrix in long form.
@@ -38,4 +43,27 @@ table "matrix_long" {
 table "matrix_readable" {
   tests = ["wellbeing_matrix"]
   path  = "out/school_wellbeing.md"
+}
+
+# The same results as APA correlation matrices (lower triangle, one per
+# measure), significance marked and explained under each table.
+table "matrix_apa" {
+  tests  = ["wellbeing_matrix"]
+  path   = "out/school_matrix.md"
+  layout = "matrix"
+  style  = "apa"
+  marks  = true
+}
+
+# Typed result records for any Arrow or Parquet tool.
+table "matrix_records" {
+  tests = ["wellbeing_matrix"]
+  path  = "out/school_wellbeing.parquet"
+}
+
+figure "wellbeing_heatmap" {
+  test    = "wellbeing_matrix"
+  kind    = "heatmap"
+  measure = "spearman"
+  path    = "out/school_heatmap.png"
 }

@@ -38,6 +38,7 @@ commands:
   run RECIPE...      compute the recipe's tests, write its tables, append to its ledger
   check RECIPE...    validate recipes against their data headers and print the plan; compute nothing
   power              power of a test of association, or the n needed for a target power
+  inspect FILE       describe a data file's columns; --recipe prints a recipe skeleton for it
   version            print the version
 
 Run "concordat <command> --help" for the flags of a command.
@@ -56,6 +57,8 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return cmdCheck(rest, stdout, stderr)
 	case "power":
 		return cmdPower(rest, stdout, stderr)
+	case "inspect":
+		return cmdInspect(rest, stdout, stderr) // inspect.go
 	case "version", "--version":
 		fmt.Fprintf(stdout, "concordat %s\n", toolVersion())
 		return exitOK
@@ -120,7 +123,11 @@ func (c *command) parse(args []string, stdout, stderr io.Writer) int {
 	}
 	switch {
 	case c.args != "" && c.fs.NArg() == 0:
-		fmt.Fprintf(stderr, "concordat: error: %s needs at least one recipe file\n", c.fs.Name())
+		what := "at least one recipe file"
+		if c.args == "FILE" {
+			what = "a data file" // inspect
+		}
+		fmt.Fprintf(stderr, "concordat: error: %s needs %s\n", c.fs.Name(), what)
 		c.usage(stderr)
 		return exitUsage
 	case c.args == "" && c.fs.NArg() > 0:

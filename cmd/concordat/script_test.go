@@ -43,6 +43,11 @@ func TestScripts(t *testing.T) {
 			"ledger":   cmdLedger,
 			"exits":    cmdExits,
 			"nohidden": cmdNoHidden,
+			// outputs_test.go
+			"parquetcsv": cmdParquetCSV,
+			"htmlpage":   cmdHTMLPage,
+			"image":      cmdImage,
+			"latex":      cmdLaTeX,
 		},
 	})
 }

@@ -17,6 +17,7 @@ const (
 	KindProb          // a probability such as a p-value; NaN means undefined
 	KindList          // a list of strings, such as warnings
 	KindInterval      // a pair of reals [lo, hi]; a NaN bound means undefined
+	KindReport        // a statistical statement such as rₛ(48) = .42, p = .003
 	kindEnd           // one past the last valid kind
 )
 
@@ -35,6 +36,8 @@ func (k Kind) String() string {
 		return "list"
 	case KindInterval:
 		return "interval"
+	case KindReport:
+		return "report"
 	}
 	return "Kind(" + itoa(int64(k)) + ")"
 }
@@ -58,6 +61,16 @@ type Cell struct {
 	hi    float64 // the upper bound of an Interval
 	items []string
 	none  bool // a Text cell with no value (NoText)
+	// bounded marks a Real or Interval whose size cannot exceed 1, such as
+	// a correlation: the APA style writes it without a leading zero.
+	bounded bool
+	// mark is appended to a Real's number, such as significance stars.
+	mark string
+	// filler marks a Text cell that stands in for a number (a matrix's
+	// diagonal dash, an empty upper triangle): it does not stop a column
+	// from being aligned as numbers.
+	filler bool
+	report *Statement
 }
 
 // Text returns a text cell holding s.
@@ -67,6 +80,12 @@ func Text(s string) Cell { return Cell{kind: KindText, text: s} }
 // p-value that was not computed: "—" in Markdown, an empty field in CSV and
 // null in JSON.
 func NoText() Cell { return Cell{kind: KindText, none: true} }
+
+// Filler returns a text cell holding s that stands where a number could be,
+// such as the dash on a correlation matrix's diagonal or an empty cell above
+// it. It prints as s in every format (an empty CSV field for ""), and unlike
+// Text it leaves a column of numbers aligned as numbers.
+func Filler(s string) Cell { return Cell{kind: KindText, text: s, filler: true} }
 
 // Int returns an integer cell holding i.
 func Int(i int64) Cell { return Cell{kind: KindInt, i: i} }
@@ -99,6 +118,34 @@ func List(items []string) Cell {
 // bounds are stored as given; Interval does not check that lo <= hi.
 func Interval(lo, hi float64) Cell { return Cell{kind: KindInterval, f: lo, hi: hi} }
 
+// Bounded returns c marked as a quantity whose size cannot exceed 1, such as
+// a correlation coefficient or its interval. The Plain style ignores the
+// mark; the APA style then drops the leading zero (".42", "[−.65, −.49]"), as
+// the APA Publication Manual (7th ed., 2020, §6.36) asks for quantities that
+// cannot be greater than 1. It applies to Real and Interval cells and leaves
+// other cells as they are. (Prob cells are always bounded.)
+func (c Cell) Bounded() Cell {
+	if c.kind == KindReal || c.kind == KindInterval {
+		c.bounded = true
+	}
+	return c
+}
+
+// Marked returns a Real cell with mark written right after its number, such
+// as the asterisks that flag significance in a correlation matrix; the mark
+// is not written when the number is undefined. Other cells are returned as
+// they are.
+func (c Cell) Marked(mark string) Cell {
+	if c.kind == KindReal {
+		c.mark = mark
+	}
+	return c
+}
+
+// Report returns a cell holding a statistical statement, written in the
+// APA style whatever the table's style, since its form is the manual's.
+func Report(s Statement) Cell { return Cell{kind: KindReport, report: &s} }
+
 // Kind returns what c holds.
 func (c Cell) Kind() Kind { return c.kind }
 
@@ -112,6 +159,8 @@ func (c Cell) null() bool {
 		return math.IsNaN(c.f)
 	case KindInterval:
 		return math.IsNaN(c.f) || math.IsNaN(c.hi)
+	case KindReport:
+		return math.IsNaN(c.report.Estimate)
 	}
 	return false
 }

@@ -49,6 +49,11 @@ func csvCell(c Cell, digits int) string {
 		return intervalText(c, digits)
 	case KindList:
 		return joinList(c.items)
+	case KindReport:
+		if c.null() {
+			return ""
+		}
+		return c.report.plainText()
 	}
 	panic("render: cell of invalid kind " + c.kind.String()) // Encode checked the table
 }

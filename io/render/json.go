@@ -98,6 +98,12 @@ func writeJSONCell(w *bufio.Writer, c Cell) {
 			w.WriteString("\n")
 		}
 		w.WriteString("    ]")
+	case KindReport:
+		if c.null() {
+			w.WriteString("null")
+			return
+		}
+		w.WriteString(jsonString(c.report.plainText()))
 	default:
 		panic("render: cell of invalid kind " + c.kind.String()) // Encode checked the table
 	}

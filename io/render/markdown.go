@@ -2,7 +2,6 @@ package render
 
 import (
 	"bufio"
-	"math"
 	"strings"
 	"unicode/utf8"
 )
@@ -22,7 +21,10 @@ const mdProbDigits = 3
 // otherwise it is left-aligned. Cells are padded to the column's width,
 // counted in runes, so the raw file reads as a table too (characters that
 // take two terminal cells, such as CJK, will still look misaligned).
-func encodeMarkdown(w *bufio.Writer, t *Table, digits int) error {
+//
+// A table with Blocks gets a row before each block holding the block's
+// heading in bold in the first cell.
+func encodeMarkdown(w *bufio.Writer, t *Table, s Style) {
 	if t.Title != "" {
 		w.WriteString(mdEscape(t.Title))
 		w.WriteString("\n\n")
@@ -35,23 +37,27 @@ func encodeMarkdown(w *bufio.Writer, t *Table, digits int) error {
 	for c, name := range t.Columns {
 		header[c] = mdEscape(name)
 		width[c] = max(3, utf8.RuneCountInString(header[c])) // "---" is the shortest rule
-		right[c] = t.Len() > 0
+		right[c] = len(t.Rows) > 0
 	}
-	body := make([][]string, t.Len())
-	err := t.each(func(r int, row []Cell) error {
-		body[r] = make([]string, n)
+	var body [][]string
+	starts := t.blockStarts()
+	for r, row := range t.Rows {
+		if h, ok := starts[r]; ok && n > 0 {
+			head := make([]string, n)
+			head[0] = "**" + mdEscape(h) + "**"
+			width[0] = max(width[0], utf8.RuneCountInString(head[0]))
+			body = append(body, head)
+		}
+		cells := make([]string, n)
 		for c, cell := range row {
-			s := mdCell(cell, digits)
-			body[r][c] = s
-			width[c] = max(width[c], utf8.RuneCountInString(s))
-			if !cell.kind.numeric() {
+			text := mdCellStyled(cell, s)
+			cells[c] = text
+			width[c] = max(width[c], utf8.RuneCountInString(text))
+			if !cell.kind.numeric() && !cell.filler {
 				right[c] = false
 			}
 		}
-		return nil
-	})
-	if err != nil {
-		return err
+		body = append(body, cells)
 	}
 
 	writeRow := func(cells []string) {
@@ -88,15 +94,19 @@ func encodeMarkdown(w *bufio.Writer, t *Table, digits int) error {
 		w.WriteString("\n")
 		for _, note := range t.Notes {
 			w.WriteString("- ")
-			w.WriteString(mdEscapeText(note))
+			// A note may hold significance marks ("*p < .05"), which
+			// would start emphasis.
+			w.WriteString(strings.ReplaceAll(mdEscapeText(note), "*", `\*`))
 			w.WriteString("\n")
 		}
 	}
-	return nil
 }
 
-// mdCell returns the text of one cell in Markdown.
-func mdCell(c Cell, digits int) string {
+// mdCell returns the text of one cell in Markdown with plain numbers.
+func mdCell(c Cell, digits int) string { return mdCellStyled(c, Style{Numbers: Plain, Digits: digits}) }
+
+// mdCellStyled returns the text of one cell in Markdown.
+func mdCellStyled(c Cell, s Style) string {
 	switch c.kind {
 	case KindText:
 		if c.null() {
@@ -109,24 +119,23 @@ func mdCell(c Cell, digits int) string {
 		if c.null() {
 			return mdNull
 		}
-		return fixed(c.f, digits)
+		// A mark such as "**" would start emphasis: escape it.
+		return strings.ReplaceAll(s.realText(c), "*", `\*`)
 	case KindProb:
 		if c.null() {
 			return mdNull
 		}
-		if digits < 0 {
-			return fixed(c.f, digits)
-		}
-		d := max(digits, mdProbDigits)
-		if bound := math.Pow10(-d); c.f >= 0 && c.f < bound {
-			return "< " + fixed(bound, d)
-		}
-		return fixed(c.f, d)
+		return s.probText(c.f)
 	case KindInterval:
 		if c.null() {
 			return mdNull
 		}
-		return intervalText(c, digits)
+		return s.intervalText(c)
+	case KindReport:
+		if c.null() {
+			return mdNull
+		}
+		return mdEscape(c.report.plainText())
 	case KindList:
 		items := make([]string, len(c.items))
 		for i, s := range c.items {
