@@ -265,7 +265,7 @@ func (j job) measure(ctx context.Context, r runner, runs int, bin string, rs rSt
 				return rw, err
 			}
 		}
-		s, err := r.run(ctx, dir, []string{bin, "run", "recipe.hcl"})
+		s, err := r.run(ctx, dir, []string{bin, "run", "--timings", "recipe.hcl"})
 		if errors.Is(err, errTimeout) {
 			logf("%s: concordat run %d: timed out after %s", it.name, i+1, r.timeout)
 			rw.concordat.timedOut = true
@@ -279,7 +279,11 @@ func (j job) measure(ctx context.Context, r runner, runs int, bin string, rs rSt
 			rw.concordat.failed = true
 			break
 		}
-		logf("%s: concordat run %d: %s (CPU %s), peak RSS %s", it.name, i+1, fmtSeconds(s.wall.Seconds()), fmtSeconds(s.cpu.Seconds()), fmtBytes(s.peakRSS))
+		c, ok := inMemorySeconds(s.stderr)
+		if ok {
+			rw.concordat.compute = append(rw.concordat.compute, c)
+		}
+		logf("%s: concordat run %d: %s (CPU %s; in memory %s), peak RSS %s", it.name, i+1, fmtSeconds(s.wall.Seconds()), fmtSeconds(s.cpu.Seconds()), fmtSeconds(c), fmtBytes(s.peakRSS))
 		rw.concordat.add(s)
 	}
 	if !rs.usable(it) {

@@ -34,6 +34,7 @@ type sample struct {
 	cpu     time.Duration // user + system time of the process and its waited-for children
 	peakRSS int64         // bytes; 0 when unknown
 	stdout  []byte
+	stderr  []byte
 }
 
 // run runs argv in dir and measures its wall time (from just before the start
@@ -73,7 +74,7 @@ func (r runner) run(ctx context.Context, dir string, argv []string) (sample, err
 
 	start := time.Now()
 	err := cmd.Run()
-	s := sample{wall: time.Since(start), stdout: stdout.Bytes()}
+	s := sample{wall: time.Since(start), stdout: stdout.Bytes(), stderr: stderr.Bytes()}
 	if ctx.Err() != nil {
 		if errors.Is(ctx.Err(), context.DeadlineExceeded) && r.timeout > 0 {
 			return s, errTimeout
@@ -147,6 +148,36 @@ func computeSeconds(stdout []byte) (float64, bool) {
 			v, err := strconv.ParseFloat(strings.TrimSpace(rest), 64)
 			return v, err == nil
 		}
+	}
+	return 0, false
+}
+
+// inMemorySeconds reads concordat's `run --timings` line from its stderr
+// ("… time: read 1.2 s (…), compute 0.8 s (…), tables 0.1 s (…), write …")
+// and returns compute + tables: the time between reading the data and
+// writing the outputs, the figure comparable to R's in-script time.
+func inMemorySeconds(stderr []byte) (float64, bool) {
+	for _, line := range strings.Split(string(stderr), "\n") {
+		_, rest, ok := strings.Cut(line, " time: ")
+		if !ok {
+			continue
+		}
+		var sum float64
+		found := 0
+		for _, phase := range strings.Split(rest, ", ") {
+			name, value, ok := strings.Cut(phase, " ")
+			if !ok || (name != "compute" && name != "tables") {
+				continue
+			}
+			num, _, _ := strings.Cut(value, " ")
+			v, err := strconv.ParseFloat(num, 64)
+			if err != nil {
+				return 0, false
+			}
+			sum += v
+			found++
+		}
+		return sum, found == 2
 	}
 	return 0, false
 }
