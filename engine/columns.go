@@ -22,8 +22,9 @@ import (
 type cellSource struct {
 	test  *recipe.Test
 	tbl   *dataset.Table
-	rows  []int // the group's rows in file order, nil for every row
-	total int   // rows in the group
+	rows  []int  // the group's rows in file order, nil for every row
+	total int    // rows in the group
+	group string // the group's name ("all" for every row)
 	note  string
 
 	// Listwise: the table rows complete in every column of the pairing and
@@ -51,6 +52,7 @@ type column struct {
 
 	once     sync.Once
 	prepared atomic.Bool      // once has run
+	rankInto []float64        // where prepare writes the ranks, if set before it runs
 	share    float64          // stats.TieShare
 	ranks    []float64        // under the test's tie rule
 	mono     *stats.MonotoneX // the monotonicity subsample prepared as x
@@ -115,7 +117,7 @@ func monotoneSubsample(v []float64) []float64 {
 // newCellSource gathers the columns of test t's pairing (and controls) for
 // one group.
 func newCellSource(t *recipe.Test, tbl *dataset.Table, g group) *cellSource {
-	src := &cellSource{test: t, tbl: tbl, rows: g.rows, total: tbl.Rows, note: g.note, cols: map[string]*column{}}
+	src := &cellSource{test: t, tbl: tbl, rows: g.rows, total: tbl.Rows, group: g.name, note: g.note, cols: map[string]*column{}}
 	if g.rows != nil {
 		src.total = len(g.rows)
 	}
@@ -273,7 +275,7 @@ func (c *column) prepare(rule stats.TieRule) *column {
 			return
 		}
 		// One radix pass gives the ranks and the tie groups.
-		r := stats.RankTies(c.values, rule)
+		r := stats.RankTiesInto(c.values, rule, c.rankInto)
 		c.ranks, c.share = r.Ranks, float64(r.Tied)/float64(len(c.values))
 		if len(c.values) < 2 {
 			c.share = 0 // as stats.TieShare

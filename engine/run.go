@@ -121,11 +121,14 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	clock.lap("read")
 
 	// Lay out the cells of work in recipe order, then fill them concurrently.
+	// A cell is one (test, pair, group): a matrix has hundreds of
+	// thousands, so it is kept small and its input is made when it runs.
 	type cell struct {
-		in  cellInput
-		src *cellSource
+		src  *cellSource // the test and group
+		pair int         // index into the test's pairs
+		at   int         // its first result in results
 	}
-	var cells []*cell
+	var cells []cell
 	groupsOf := map[*recipe.Pairing][]group{}
 	var diags hcl.Diagnostics
 	for _, p := range plan.Pairings {
@@ -160,11 +163,10 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 			srcs[gi] = newCellSource(t, tbl, g)
 		}
 		start := at
-		for _, pair := range t.Pairing.Pairs {
-			for gi, g := range groups {
-				out := results[at : at+len(t.Measures) : at+len(t.Measures)]
+		for pi := range t.Pairing.Pairs {
+			for gi := range groups {
+				cells = append(cells, cell{src: srcs[gi], pair: pi, at: at})
 				at += len(t.Measures)
-				cells = append(cells, &cell{in: cellInput{test: t, pair: pair, group: g.name, dst: out}, src: srcs[gi]})
 			}
 		}
 		byTest[t.Name] = results[start:at:at]
@@ -191,9 +193,11 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 					return err
 				}
 				c := cells[i]
-				c.in.s, c.in.px, c.in.py, c.in.sh = c.src.sample(c.in.pair)
-				err := measureSample(env, c.in)
-				c.in = cellInput{} // the cell's data is no longer needed
+				t := c.src.test
+				in := cellInput{test: t, pair: t.Pairing.Pairs[c.pair], group: c.src.group,
+					dst: results[c.at : c.at+len(t.Measures) : c.at+len(t.Measures)]}
+				in.s, in.px, in.py, in.sh = c.src.sample(in.pair)
+				err := measureSample(env, in)
 				prog.cellDone()
 				if err != nil {
 					return err

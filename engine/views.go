@@ -6,6 +6,7 @@ import (
 
 	"golang.org/x/sync/errgroup"
 
+	"concordat/engine/bigmem"
 	"concordat/engine/stats"
 	"concordat/recipe"
 )
@@ -59,6 +60,7 @@ func (src *cellSource) baseShared() *shared {
 			sh.names = append(sh.names, name)
 		}
 	}
+	sh.rankBlock(t)
 	return sh
 }
 
@@ -202,10 +204,26 @@ func (v *patternView) columns(src *cellSource) *shared {
 			}
 			sh.cols[name] = c
 		}
+		sh.rankBlock(src.test)
 		v.sh = sh
 		v.missing = nil // no longer needed
 	})
 	return v.sh
+}
+
+// rankBlock gives the columns of a set that will have a Spearman matrix
+// one block of memory for their ranks, which can be mapped in huge pages
+// (engine/bigmem): a 1000-column matrix ranks a thousand columns at once.
+// It runs before any cell of the set, as prepare reads rankInto.
+func (sh *shared) rankBlock(t *recipe.Test) {
+	if sh.pairs < matrixMinPairs || len(t.Controls) > 0 || len(sh.names) < 2 || !slices.Contains(t.Measures, stats.Spearman) {
+		return
+	}
+	n := len(sh.cols[sh.names[0]].values)
+	block := bigmem.Make[float64](n*len(sh.names), 0)
+	for i, name := range sh.names {
+		sh.cols[name].rankInto = block[i*n : (i+1)*n : (i+1)*n]
+	}
 }
 
 // matrixValue returns measure m (Spearman or Pearson, no controls) of pair

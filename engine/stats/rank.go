@@ -60,11 +60,24 @@ type Ranking struct {
 // first), has 2³¹ or more values, or if rule is not one of the declared tie
 // rules.
 func RankTies(x []float64, rule TieRule) Ranking {
+	return RankTiesInto(x, rule, nil)
+}
+
+// RankTiesInto is RankTies writing the ranks into dst, which must hold
+// len(x) values (nil: new memory), and returns them as Ranks. A correlation
+// matrix ranks its columns into one block of memory this way.
+func RankTiesInto(x []float64, rule TieRule, dst []float64) Ranking {
 	checkRule(rule)
 	n := len(x)
+	if dst != nil && len(dst) != n {
+		panic(fmt.Sprintf("stats: RankTiesInto: %d values and room for %d ranks", n, len(dst)))
+	}
 	s := getRadixScratch(n)
 	s.sort(x, "Rank")
-	rk := Ranking{Ranks: s.spareAsFloats()}
+	if dst == nil {
+		dst = s.spareAsFloats()
+	}
+	rk := Ranking{Ranks: dst}
 	rk.Ties, rk.Tied = rankSorted(s.keys(), s.idx(), rule, rk.Ranks)
 	putRadixScratch(s)
 	return rk

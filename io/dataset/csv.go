@@ -634,6 +634,9 @@ func (a *assembler) add(c *textChunk) {
 	if a.seen > 0 {
 		est = int(float64(a.t.Rows+n) * float64(a.size) / float64(a.seen) * 1.05)
 	}
+	if a.t.Rows == 0 && est > n {
+		a.numberBlock(est)
+	}
 	for k := range a.t.Columns {
 		col, cc := &a.t.Columns[k], &c.cols[k]
 		if col.Kind != Label {
@@ -662,6 +665,29 @@ func (a *assembler) add(c *textChunk) {
 		}
 	}
 	a.t.Rows += n
+}
+
+// numberBlock gives every number column room for rows values in one block
+// of memory, which can be mapped in huge pages (engine/bigmem): a table of
+// a thousand columns would otherwise fault in a thousand small arrays.
+func (a *assembler) numberBlock(rows int) {
+	cols := 0
+	for _, col := range a.t.Columns {
+		if col.Kind != Label {
+			cols++
+		}
+	}
+	if cols < 2 {
+		return
+	}
+	block := bigmem.Make[float64](0, rows*cols)
+	j := 0
+	for k := range a.t.Columns {
+		if col := &a.t.Columns[k]; col.Kind != Label {
+			col.Values = block[j*rows : j*rows : (j+1)*rows]
+			j++
+		}
+	}
 }
 
 // room returns s with room for n more elements. When it must grow, it grows
