@@ -7,6 +7,7 @@ require (
 	github.com/gowebpki/jcs v1.0.2
 	github.com/hashicorp/hcl/v2 v2.25.0
 	github.com/rogpeppe/go-internal v1.16.0
+	github.com/santhosh-tekuri/jsonschema/v6 v6.0.3
 	github.com/spf13/pflag v1.1.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0

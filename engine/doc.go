@@ -8,6 +8,12 @@
 // into place only after every step has succeeded and the ledger has been
 // found intact.
 //
+// A run killed while it moves its tables into place leaves a journal beside
+// the ledger, from which the next run restores the tables of the last record
+// (or keeps the new ones, if the record was written): see journal.go.
+// Computation.Record builds the record a run would append without writing
+// anything, which is what `concordat verify` (engine/verify) compares.
+//
 // Results come out in recipe order (test, pair, group, measure) whatever the
 // number of workers, so outputs and hashes are byte-identical for any Jobs.
 package engine

@@ -5,7 +5,6 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
-	"encoding/json"
 	"fmt"
 	"math"
 	"time"
@@ -150,10 +149,11 @@ func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, where 
 // put back.
 func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Options, started time.Time) (*Report, error) {
 	ledgerPath := plan.LedgerPath()
-	settings, err := json.Marshal(plan.Settings())
+	rec, err := c.record(plan, opts, started, opts.now()) // engine/record.go
 	if err != nil {
-		return nil, fmt.Errorf("encode settings: %w", err)
+		return nil, err
 	}
+	outputs := rec.Outputs
 	var batch render.Batch
 	var held *ledger.Locked
 	defer func() {
@@ -165,30 +165,10 @@ func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Option
 			held.Unlock()
 		}
 	}()
-	var outputs []ledger.Output
 	for _, rt := range c.tables {
 		if err := batch.Add(rt.path, rt.data); err != nil {
 			return nil, fmt.Errorf("write %q: %w", rt.name, err)
 		}
-		sum := sha256.Sum256(rt.data)
-		outputs = append(outputs, ledger.Output{
-			Table: rt.name, Path: relPath(plan.Dir, rt.path),
-			Format: rt.format, SHA256: hex.EncodeToString(sum[:]), Bytes: int64(len(rt.data)),
-		})
-	}
-	recipeSum := sha256.Sum256(plan.Source)
-	rec := ledger.Record{
-		Format:   ledger.FormatV1,
-		Recipe:   ledger.File{Path: relPath(plan.Dir, plan.Path), SHA256: hex.EncodeToString(recipeSum[:]), Bytes: int64(len(plan.Source))},
-		Title:    plan.Title,
-		Tool:     ledger.CurrentTool(version(opts)),
-		Seed:     plan.Seed,
-		Settings: settings,
-		Inputs:   c.inputs,
-		Steps:    c.steps,
-		Outputs:  outputs,
-		Started:  ledger.Timestamp(started),
-		Finished: ledger.Timestamp(opts.now()),
 	}
 
 	held, err = ledger.LockContext(ctx, ledgerPath, func() {
@@ -197,25 +177,41 @@ func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Option
 	if err != nil {
 		return nil, fmt.Errorf("ledger: %w", err)
 	}
+	// Put right what a run killed while writing left behind (journal.go).
+	if err := recoverJournal(held, ledgerPath, opts.stderr()); err != nil {
+		return nil, err
+	}
 	// Refuse before any table moves if the ledger is damaged, and stop
 	// here if the run was interrupted: this is the last point at which
 	// nothing has been written.
-	if _, err := held.Records(); err != nil {
+	recs, err := held.Records()
+	if err != nil {
 		return nil, fmt.Errorf("ledger: %w", err)
 	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
+	// The journal lets the next run finish or undo this commit should the
+	// process die between the first rename and the ledger's append.
+	if err := writeJournal(ledgerPath, len(recs), c.tables); err != nil {
+		return nil, err
+	}
 	if err := batch.Commit(); err != nil {
+		removeJournal(ledgerPath)
 		return nil, fmt.Errorf("move tables into place: %w", err)
 	}
 	stored, err := appendRecord(held, rec)
 	if err != nil {
 		err = fmt.Errorf("append ledger: %w", err)
 		if uerr := batch.Undo(); uerr != nil {
+			// The journal stays: the next run tries to put them back.
 			return nil, &PartialWriteError{Err: err, Undo: uerr}
 		}
+		removeJournal(ledgerPath)
 		return nil, err
+	}
+	if err := removeJournal(ledgerPath); err != nil {
+		fmt.Fprintf(opts.stderr(), "concordat: warning: %v\n", err)
 	}
 	if err := batch.Release(); err != nil {
 		// The run is complete and recorded; a leftover backup is untidy,

@@ -3,6 +3,9 @@ package engine
 import (
 	"context"
 	"fmt"
+	"strconv"
+
+	"github.com/zclconf/go-cty/cty"
 
 	"concordat/engine/filter"
 	"concordat/io/dataset"
@@ -21,8 +24,17 @@ type whereOutcome struct {
 	Columns []whereColumn `json:"columns"` // how each of its columns was read
 	Rows    int           `json:"rows"`    // data rows before the filter
 	Kept    int           `json:"kept"`    // rows for which it is true
+	// Params are the recipe parameters the filter uses, with the values it
+	// ran with; left out when it uses none, so that the step hash of a
+	// filter without parameters is as it always was.
+	Params []whereParam `json:"params,omitempty"`
 
 	kept []int // the kept rows, in file order
+}
+
+type whereParam struct {
+	Name  string `json:"name"`
+	Value string `json:"value"` // as HCL writes it: 21, "B", true
 }
 
 type whereColumn struct {
@@ -68,6 +80,9 @@ func applyWheres(ctx context.Context, plan *recipe.Plan, tables map[string]*data
 			continue
 		}
 		w := &whereOutcome{Text: ds.Where.Text, Rows: tbl.Rows}
+		for _, p := range ds.Where.Params {
+			w.Params = append(w.Params, whereParam{Name: p.Name, Value: paramText(p.Value)})
+		}
 		data := make([]filter.Data, len(ds.Where.Columns))
 		for i, c := range ds.Where.Columns {
 			s := whereSpec(c)
@@ -105,7 +120,28 @@ func (w *whereOutcome) note() string {
 	if w == nil {
 		return ""
 	}
-	return fmt.Sprintf("%d of %d rows excluded by where: %s", w.Rows-w.Kept, w.Rows, w.Text)
+	note := fmt.Sprintf("%d of %d rows excluded by where: %s", w.Rows-w.Kept, w.Rows, w.Text)
+	for i, p := range w.Params {
+		sep := ", "
+		if i == 0 {
+			sep = " with "
+		}
+		note += sep + "param." + p.Name + " = " + p.Value
+	}
+	return note
+}
+
+// paramText writes a parameter's value as HCL would.
+func paramText(v cty.Value) string {
+	switch v.Type() {
+	case cty.String:
+		return strconv.Quote(v.AsString())
+	case cty.Bool:
+		return strconv.FormatBool(v.True())
+	case cty.Number:
+		return v.AsBigFloat().Text('g', -1)
+	}
+	return v.GoString()
 }
 
 // joinNotes joins two notes of one group into one warning.

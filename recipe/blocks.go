@@ -18,7 +18,7 @@ var (
 	topSpec = spec{
 		where:  "at the top level of a recipe",
 		attrs:  []string{"title", "seed"},
-		blocks: []string{"dataset", "pairing", "ties", "test", "table", "figure"},
+		blocks: []string{"param", "dataset", "pairing", "ties", "test", "table", "figure"},
 	}
 	datasetSpec = spec{
 		where:    "in a dataset block",
@@ -62,8 +62,9 @@ var (
 // the order references point (datasets and ties, then pairings, tests,
 // tables), so each reference meets a complete index of its targets.
 func (d *decoder) decodeRecipe(body *hclsyntax.Body) *Plan {
+	params := d.decodeParams(body, d.overrides) // first: every argument may use them (param.go)
 	c := d.content(body, topSpec, body.SrcRange)
-	plan := &Plan{Seed: defaultSeed}
+	plan := &Plan{Seed: defaultSeed, Params: params}
 	if a := c.attrs["title"]; a != nil {
 		plan.Title, _ = d.str(a)
 	}
@@ -187,7 +188,7 @@ func (d *decoder) decodeDataset(b *hclsyntax.Block) *Dataset {
 	// The filter is read last: a column with levels is compared by them.
 	if a := c.exprs["where"]; a != nil {
 		var diags hcl.Diagnostics
-		ds.Where, diags = filter.Analyze(a.Expr, d.src, filter.Env{Levels: ds.Levels, Suggest: Suggest})
+		ds.Where, diags = filter.Analyze(a.Expr, d.src, filter.Env{Levels: ds.Levels, Suggest: Suggest, Params: paramValues(d.params)})
 		d.diags = append(d.diags, diags...)
 	}
 	return ds

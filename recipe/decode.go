@@ -24,6 +24,10 @@ type decoder struct {
 	ledgerPath string
 	src        []byte // the recipe's text, for the source of a where expression
 	diags      hcl.Diagnostics
+
+	overrides []Override       // --param values, applied by decodeParams (param.go)
+	params    []*Param         // the declared parameters, once decoded
+	ctx       *hcl.EvalContext // param.NAME for every argument; nil without parameters
 }
 
 func (d *decoder) add(sev hcl.DiagnosticSeverity, summary, detail string, subject hcl.Range, context *hcl.Range) {
@@ -61,7 +65,7 @@ type spec struct {
 // labelCount says how many labels (names) each block type takes.
 var labelCount = map[string]int{
 	"dataset": 1, "pairing": 1, "ties": 1, "test": 1, "table": 1, "figure": 1,
-	"column": 1, "interval": 0,
+	"column": 1, "interval": 0, "param": 1,
 }
 
 // attr is an argument whose value has been evaluated once.
@@ -197,8 +201,9 @@ func (d *decoder) checkLabels(b *hclsyntax.Block) bool {
 	return true
 }
 
-// evaluate computes an argument's constant value. Recipes have no variables
-// and no functions; a bare name is most likely a word that lost its quotes.
+// evaluate computes an argument's constant value. Recipes have no functions
+// and one variable, param (param.NAME for each param block, see param.go);
+// a bare name is most likely a word that lost its quotes.
 // (The one argument whose bare names are columns, a dataset's where, is not
 // evaluated here: see spec.exprs and engine/filter.)
 func (d *decoder) evaluate(a *hclsyntax.Attribute) *attr {
@@ -211,7 +216,7 @@ func (d *decoder) evaluate(a *hclsyntax.Attribute) *attr {
 			return &attr{Attribute: a}
 		}
 	}
-	v, diags := a.Expr.Value(nil)
+	v, diags := a.Expr.Value(d.ctx)
 	d.diags = append(d.diags, diags...)
 	if diags.HasErrors() || !v.IsWhollyKnown() {
 		return &attr{Attribute: a}

@@ -25,6 +25,7 @@ func (p *Plan) Describe(w io.Writer) error {
 	fmt.Fprintf(&b, "# Paths are relative to %s; the ledger is %s.\n\n", quote(p.Dir), quote(p.LedgerPath()))
 	fmt.Fprintf(&b, "title = %s\n", quote(p.Title))
 	fmt.Fprintf(&b, "seed = %d\n", p.Seed)
+	describeParams(&b, p.Params) // param.go
 
 	for _, ds := range p.Datasets {
 		fmt.Fprintf(&b, "\ndataset %s {\n", quote(ds.Name))
@@ -170,7 +171,7 @@ func measureWordsOf(ms []stats.Measure) []string {
 // columns (every i<j pair in order), and a matrix of a thousand columns
 // would otherwise add half a million entries to every record.
 func (p *Plan) Settings() any {
-	s := planSettings{Title: p.Title, Seed: p.Seed}
+	s := planSettings{Title: p.Title, Seed: p.Seed, Params: paramsSettings(p.Params)}
 	for _, ds := range p.Datasets {
 		d := datasetSettings{
 			Name: ds.Name, Path: ds.PathAsWritten, Format: string(ds.Format),
@@ -249,6 +250,10 @@ type planSettings struct {
 	// Figures are left out when there are none, so that the settings of
 	// a recipe without figures are as they always were.
 	Figures []figureSettings `json:"figures,omitempty"`
+	// Params are the param blocks with their values; left out when there
+	// are none, so that the settings of a recipe without them are as they
+	// always were.
+	Params []paramSettings `json:"params,omitempty"`
 }
 
 type datasetSettings struct {

@@ -15,6 +15,13 @@
 // ranges that the Plan keeps for that purpose (Pairing.ColumnRanges,
 // ColumnDecl.LevelsRange, Dataset.Where's Columns).
 //
+// A param block declares a named value with a default, such as
+// param "min_age" { default = 18 }, that any argument uses as param.min_age;
+// LoadWith
+// overrides defaults (`--param min_age=21`), and Plan.Params and the
+// settings record the values used. Pin writes dataset sha256 pins into a
+// recipe's text in place (`run --pin`).
+//
 // A dataset's where is the one argument whose bare names are not mistakes
 // but column names: it is kept as an expression and checked by
 // engine/filter (its operators, and the type each column is read as),

@@ -71,6 +71,11 @@ func Parse(src []byte, filename string) (*Plan, hcl.Diagnostics) {
 // tree recovered from broken syntax would produce misleading follow-on
 // errors.
 func ParseFiles(src []byte, filename string) (*Plan, map[string]*hcl.File, hcl.Diagnostics) {
+	return parseFiles(src, filename, nil)
+}
+
+// parseFiles is ParseFiles with parameter overrides (param.go).
+func parseFiles(src []byte, filename string, overrides []Override) (*Plan, map[string]*hcl.File, hcl.Diagnostics) {
 	file, diags := hclsyntax.ParseConfig(src, filename, hcl.Pos{Line: 1, Column: 1, Byte: 0})
 	files := map[string]*hcl.File{filename: file}
 	if diags.HasErrors() {
@@ -88,7 +93,7 @@ func ParseFiles(src []byte, filename string) (*Plan, map[string]*hcl.File, hcl.D
 
 	dir := filepath.Dir(filename)
 	name := strings.TrimSuffix(filepath.Base(filename), ".hcl")
-	d := &decoder{dir: dir, recipePath: filename, ledgerPath: ledger.PathFor(filename), src: src}
+	d := &decoder{dir: dir, recipePath: filename, ledgerPath: ledger.PathFor(filename), src: src, overrides: overrides}
 	plan := d.decodeRecipe(body)
 	diags = append(diags, d.diags...)
 	sortDiagnostics(diags)

@@ -19,8 +19,9 @@ type Plan struct {
 	Source []byte               // the recipe bytes, for hashing
 	Files  map[string]*hcl.File // parsed files, for hcl.NewDiagnosticTextWriter
 
-	Title string
-	Seed  int64 // default 1
+	Title  string
+	Seed   int64    // default 1
+	Params []*Param // the param blocks, in recipe order, with their resolved values (param.go)
 
 	Datasets []*Dataset
 	Ties     []*Ties // the ties blocks the recipe declares (not the built-in default)

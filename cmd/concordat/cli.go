@@ -37,6 +37,8 @@ const usage = `usage: concordat <command> [flags] [arguments]
 commands:
   run RECIPE...      compute the recipe's tests, write its tables, append to its ledger
   check RECIPE...    validate recipes against their data headers and print the plan; compute nothing
+  verify RECIPE...   recompute without writing and compare with the ledger; exit 3 on any difference
+  history RECIPE     the ledger's records, newest first (--prov: as W3C PROV-JSON)
   power              power of a test of association, or the n needed for a target power
   inspect FILE       describe a data file's columns; --recipe prints a recipe skeleton for it
   version            print the version
@@ -59,6 +61,10 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return cmdPower(rest, stdout, stderr)
 	case "inspect":
 		return cmdInspect(rest, stdout, stderr) // inspect.go
+	case "verify":
+		return cmdVerify(rest, stdout, stderr) // verify.go
+	case "history":
+		return cmdHistory(rest, stdout, stderr) // history.go
 	case "version", "--version":
 		fmt.Fprintf(stdout, "concordat %s\n", toolVersion())
 		return exitOK
@@ -142,12 +148,18 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	cmd := newCommand("run", "Compute every test of each recipe, write its tables and append one record to\nthe recipe's ledger (<recipe>.ledger.jsonl beside it). A failed run writes nothing.")
 	jobs := cmd.fs.IntP("jobs", "j", 0, "worker count (default: the number of CPUs); results do not depend on it")
 	timed := cmd.fs.Bool("timings", false, "print how long reading, computing, tables and writing took (to stderr)")
+	params := paramFlag(cmd.fs) // param.go
+	pin := cmd.fs.Bool("pin", false, "first write each dataset's current sha256 into the recipe as its pin (in place; comments and layout kept)")
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
 	var timingsTo io.Writer
 	if *timed {
 		timingsTo = stderr
+	}
+	given, ok := overrides(cmd, *params, stderr)
+	if !ok {
+		return exitUsage
 	}
 	// The first Ctrl-C (or SIGTERM from a scheduler) cancels the run, which
 	// then writes nothing; once cancelled, the signals get their default
@@ -162,7 +174,13 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 			code = max(code, exitUsage)
 			continue
 		}
-		plan, files, diags := recipe.LoadFiles(path)
+		if *pin {
+			if c := pinRecipe(path, given, stdout, stderr); c != exitOK { // pin.go
+				code = max(code, c)
+				continue
+			}
+		}
+		plan, files, diags := recipe.LoadWith(path, given)
 		printDiags(stderr, path, files, diags) // errors, or warnings only
 		if diags.HasErrors() {
 			fmt.Fprintf(stderr, "concordat: error: %s: %s in the recipe; nothing was computed\n", path, plural(errorCount(diags), "problem"))
@@ -183,8 +201,13 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 
 func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	cmd := newCommand("check", "Validate each recipe and the headers of its data files, and print the resolved\nplan with every default made explicit. Nothing is computed or written.")
+	params := paramFlag(cmd.fs) // param.go
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
+	}
+	given, ok := overrides(cmd, *params, stderr)
+	if !ok {
+		return exitUsage
 	}
 	code := exitOK
 	for _, path := range cmd.fs.Args() {
@@ -192,7 +215,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 			code = max(code, exitUsage)
 			continue
 		}
-		plan, files, diags := recipe.LoadFiles(path)
+		plan, files, diags := recipe.LoadWith(path, given)
 		if !diags.HasErrors() {
 			diags = append(diags, engine.Check(plan)...)
 		}

@@ -3,10 +3,12 @@
 //
 //	concordat run RECIPE...      compute, write outputs, append to the ledger
 //	concordat check RECIPE...    validate recipe and data headers, print the plan
+//	concordat verify RECIPE...   recompute without writing; compare with the ledger
+//	concordat history RECIPE     the ledger, newest first, or as W3C PROV-JSON
 //	concordat version
 //
 // Exit codes: 0 success; 1 a run failed (data error, I/O); 2 usage or recipe
-// error.
+// error; 3 verify found a difference, or a ledger fails its own check.
 //
 // For developers: CONCORDAT_CPUPROFILE=FILE writes a CPU profile of the
 // whole command to FILE (go tool pprof reads it).

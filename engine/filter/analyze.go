@@ -51,6 +51,7 @@ type Expr struct {
 	Text    string
 	Range   hcl.Range
 	Columns []Column // in the order the expression first names them
+	Params  []Param  // the parameters it uses (param.NAME), in the order it first names them
 
 	norm hclsyntax.Expression // what runs: see normalise
 }
@@ -62,6 +63,15 @@ type Env struct {
 	// Suggest, when not nil, proposes the label a misspelled one most
 	// likely meant ("" for none), for "Did you mean" in diagnostics.
 	Suggest func(word string, candidates []string) string
+	// Params are the recipe's parameters by name: param.NAME in the
+	// expression is that value, a constant (a number, string or bool).
+	Params map[string]cty.Value
+}
+
+// Param is a recipe parameter that a filter uses, with its value.
+type Param struct {
+	Name  string
+	Value cty.Value
 }
 
 // Analyze checks a filter expression and decides how each column is read
@@ -81,14 +91,15 @@ func Analyze(expr hcl.Expression, src []byte, env Env) (*Expr, hcl.Diagnostics) 
 			Detail: "A where expression must be written in HCL native syntax.", Subject: &rng,
 		}}
 	}
-	c := &checker{env: env, src: src, cols: map[string]*tvar{}, lits: map[hclsyntax.Expression]*tvar{}, nums: map[hclsyntax.Expression]float64{}}
+	c := &checker{env: env, src: src, cols: map[string]*tvar{}, lits: map[hclsyntax.Expression]*tvar{}, nums: map[hclsyntax.Expression]float64{},
+		params: map[hclsyntax.Expression]*hclsyntax.LiteralValueExpr{}}
 	root := c.check(e)
 	c.needBool(root, e, "where")
 	c.finish()
 	if c.diags.HasErrors() {
 		return nil, c.diags
 	}
-	out := &Expr{Text: exprText(src, e.Range()), Range: e.Range()}
+	out := &Expr{Text: exprText(src, e.Range()), Range: e.Range(), Params: c.used}
 	for _, name := range c.order {
 		r := c.cols[name].find()
 		col := Column{Name: name, Kind: Number, Range: c.first[name]}
@@ -148,6 +159,10 @@ type checker struct {
 	nums  map[hclsyntax.Expression]float64 // number literals, as float64
 	ords  []ordered
 	diags hcl.Diagnostics
+	// params maps each param.NAME in the expression to the literal of its
+	// value, which stands in for it when typing and normalising.
+	params map[hclsyntax.Expression]*hclsyntax.LiteralValueExpr
+	used   []Param
 }
 
 // ordered is a comparison by <, <=, > or >=, checked once every kind is known.
@@ -188,6 +203,12 @@ func (c *checker) check(e hclsyntax.Expression) *tvar {
 			"Text in a where expression is a plain string, such as site == \"B\"; interpolations are not available. To use a column, name it without quotes.")
 		return bad()
 	case *hclsyntax.ScopeTraversalExpr:
+		if lit, ok := c.param(e); ok {
+			if lit == nil {
+				return bad()
+			}
+			return c.literal(lit)
+		}
 		if len(e.Traversal) != 1 {
 			name := e.Traversal.RootName()
 			c.errorf(e.SrcRange, nil, "Not a column name",
@@ -698,6 +719,9 @@ func (c *checker) normalise(e hclsyntax.Expression) hclsyntax.Expression {
 	case *hclsyntax.TemplateExpr:
 		return c.label(e, c.lits[e])
 	case *hclsyntax.ScopeTraversalExpr:
+		if lit, ok := c.params[e]; ok {
+			return c.normalise(lit)
+		}
 		return &hclsyntax.ScopeTraversalExpr{Traversal: e.Traversal, SrcRange: e.SrcRange}
 	case *hclsyntax.ParenthesesExpr:
 		return &hclsyntax.ParenthesesExpr{Expression: c.normalise(e.Expression), SrcRange: e.SrcRange}
@@ -723,4 +747,57 @@ func (c *checker) label(e hclsyntax.Expression, v *tvar) hclsyntax.Expression {
 		return &hclsyntax.LiteralValueExpr{Val: cty.NumberIntVal(int64(i + 1)), SrcRange: e.Range()}
 	}
 	return &hclsyntax.LiteralValueExpr{Val: cty.StringVal(s), SrcRange: e.Range()}
+}
+
+// param resolves param.NAME: ok is false when e is not of that form (it is
+// then a column, or a mistake reported as one), and lit is nil when it is,
+// but names no parameter (reported here). The literal carries the value and
+// e's range; a number is read from the value, as the source text at that
+// range is the name, not a number.
+func (c *checker) param(e *hclsyntax.ScopeTraversalExpr) (lit *hclsyntax.LiteralValueExpr, ok bool) {
+	if e.Traversal.RootName() != "param" || len(e.Traversal) != 2 {
+		return nil, false
+	}
+	attr, isAttr := e.Traversal[1].(hcl.TraverseAttr)
+	if !isAttr {
+		return nil, false
+	}
+	if lit, seen := c.params[e]; seen {
+		return lit, true
+	}
+	v, declared := c.env.Params[attr.Name]
+	if !declared {
+		names := make([]string, 0, len(c.env.Params))
+		for n := range c.env.Params {
+			names = append(names, n)
+		}
+		slices.Sort(names)
+		detail := fmt.Sprintf("The recipe declares no parameter %q.", attr.Name)
+		if len(names) == 0 {
+			detail += ` Declare one with param "` + attr.Name + `" { default = … }.`
+		} else {
+			if c.env.Suggest != nil {
+				if s := c.env.Suggest(attr.Name, names); s != "" {
+					detail += fmt.Sprintf(" Did you mean %q?", s)
+				}
+			}
+			detail += " Declared: " + strings.Join(quoteAll(names), ", ") + "."
+		}
+		c.errorf(e.SrcRange, nil, "Unknown parameter", "%s", detail)
+		return nil, true
+	}
+	lit = &hclsyntax.LiteralValueExpr{Val: v, SrcRange: e.SrcRange}
+	c.params[e] = lit
+	if !slices.ContainsFunc(c.used, func(p Param) bool { return p.Name == attr.Name }) {
+		c.used = append(c.used, Param{Name: attr.Name, Value: v})
+	}
+	return lit, true
+}
+
+func quoteAll(names []string) []string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = strconv.Quote(n)
+	}
+	return out
 }

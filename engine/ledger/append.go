@@ -47,23 +47,9 @@ func Append(path string, rec Record) (Record, error) {
 
 // appendRecord is Append for a caller that holds the ledger's lock.
 func appendRecord(path string, rec Record) (Record, error) {
-	if rec.Format == "" {
-		rec.Format = FormatV1
-	}
+	normalize(&rec)
 	if rec.Format != FormatV1 {
 		return Record{}, fmt.Errorf("append to ledger %q: unsupported format %q", path, rec.Format)
-	}
-	if rec.Tool.Modules == nil {
-		rec.Tool.Modules = []Module{}
-	}
-	if rec.Inputs == nil {
-		rec.Inputs = []Input{}
-	}
-	if rec.Steps == nil {
-		rec.Steps = []Step{}
-	}
-	if rec.Outputs == nil {
-		rec.Outputs = []Output{}
 	}
 	if rec.Settings != nil && !json.Valid(rec.Settings) {
 		return Record{}, fmt.Errorf("append to ledger %q: settings are not valid JSON", path)
@@ -100,6 +86,26 @@ func appendRecord(path string, rec Record) (Record, error) {
 		return Record{}, fmt.Errorf("append to ledger %q: reread: %w", path, err)
 	}
 	return stored, nil
+}
+
+// normalize fills what Append fills before hashing: the format when empty,
+// and empty lists for nil ones.
+func normalize(rec *Record) {
+	if rec.Format == "" {
+		rec.Format = FormatV1
+	}
+	if rec.Tool.Modules == nil {
+		rec.Tool.Modules = []Module{}
+	}
+	if rec.Inputs == nil {
+		rec.Inputs = []Input{}
+	}
+	if rec.Steps == nil {
+		rec.Steps = []Step{}
+	}
+	if rec.Outputs == nil {
+		rec.Outputs = []Output{}
+	}
 }
 
 // encodeLine returns rec as one line of compact JSON ending in a newline.

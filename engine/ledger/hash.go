@@ -54,6 +54,17 @@ type content struct {
 	Outputs  []Output        `json:"outputs"`
 }
 
+// RunHash returns the run_sha256 that Append would store rec with: the hash
+// of every field above run_sha256, after filling an empty format and nil
+// lists as Append does. It ignores the RunSHA256, PrevSHA256 and times that
+// rec holds. Two records hash equal exactly when the same build ran the same
+// recipe on the same inputs and wrote the same outputs (see the package
+// documentation).
+func RunHash(rec Record) (string, error) {
+	normalize(&rec)
+	return runHash(&rec)
+}
+
 // runHash returns the RunSHA256 of r.
 func runHash(r *Record) (string, error) {
 	settings := r.Settings
