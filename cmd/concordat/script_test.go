@@ -48,8 +48,8 @@ func TestScripts(t *testing.T) {
 			"htmlpage":   cmdHTMLPage,
 			"image":      cmdImage,
 			"latex":      cmdLaTeX,
-			"replace":  cmdReplace,  // verify_test.go
-			"truncate": cmdTruncate, // verify_test.go
+			"replace":    cmdReplace,  // verify_test.go
+			"truncate":   cmdTruncate, // verify_test.go
 		},
 	})
 }
