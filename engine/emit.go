@@ -120,6 +120,20 @@ func commonLevel(rows []Result) (float64, bool) {
 // the result hash is the sha256 of the test's results in the JSON table
 // encoding, which is canonical (fixed key order, shortest round-trip numbers).
 func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, where *whereOutcome, results []Result) (ledger.Step, error) {
+	inHash, err := stepInputHash(plan, t, inputs, where)
+	if err != nil {
+		return ledger.Step{}, err
+	}
+	outHash, err := resultHash(results)
+	if err != nil {
+		return ledger.Step{}, err
+	}
+	return ledger.Step{Test: t.Name, InputSHA256: inHash, ResultSHA256: outHash, Results: len(results)}, nil
+}
+
+// stepInputHash is a step's input hash (see stepRecord): what the test
+// asks for and the bytes of the data it reads.
+func stepInputHash(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, where *whereOutcome) (string, error) {
 	var data []ledger.Input
 	for _, in := range inputs {
 		if in.Name == t.Pairing.Dataset.Name {
@@ -131,15 +145,20 @@ func stepRecord(plan *recipe.Plan, t *recipe.Test, inputs []ledger.Input, where 
 		Datasets []ledger.Input `json:"datasets"`
 	}{testSettings(t, plan.Seed, where), data})
 	if err != nil {
-		return ledger.Step{}, fmt.Errorf("hash inputs of test %q: %w", t.Name, err)
+		return "", fmt.Errorf("hash inputs of test %q: %w", t.Name, err)
 	}
-	// The JSON text goes straight into the hash: for a matrix of 10⁵
-	// correlations it would be hundreds of megabytes.
+	return inHash, nil
+}
+
+// resultHash is a step's result hash (see stepRecord). The JSON text goes
+// straight into the hash: for a matrix of 10⁵ correlations it would be
+// hundreds of megabytes.
+func resultHash(results []Result) (string, error) {
 	h := sha256.New()
 	if err := render.Encode(h, fullTable("", results), render.JSON, -1); err != nil {
-		return ledger.Step{}, err
+		return "", err
 	}
-	return ledger.Step{Test: t.Name, InputSHA256: inHash, ResultSHA256: hex.EncodeToString(h.Sum(nil)), Results: len(results)}, nil
+	return hex.EncodeToString(h.Sum(nil)), nil
 }
 
 // commit writes the tables and appends the ledger record, or nothing. The

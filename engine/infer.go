@@ -477,7 +477,7 @@ func bootStatistic(t *recipe.Test, m stats.Measure, s sample) stats.NewStatistic
 // family size, so withholding never makes the adjustment less
 // conservative; its adjusted value is withheld too. Results without any
 // p-value (an undefined estimate) stay out of the family.
-func adjustFamilies(plan *recipe.Plan, results []Result) {
+func adjustFamilies(plan *recipe.Plan, results []Result, cached map[string]bool) {
 	byTest := map[string]*recipe.Test{}
 	for _, t := range plan.Tests {
 		byTest[t.Name] = t
@@ -487,8 +487,8 @@ func adjustFamilies(plan *recipe.Plan, results []Result) {
 	var order []family
 	for i, r := range results {
 		t := byTest[r.Test]
-		if t.Adjust == stats.AdjustNone {
-			continue
+		if t.Adjust == stats.AdjustNone || cached[r.Test] {
+			continue // cached results were adjusted when computed
 		}
 		f := family{r.Test, r.Measure}
 		if _, ok := members[f]; !ok {

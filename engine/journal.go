@@ -57,7 +57,7 @@ type journal struct {
 }
 
 type journalEntry struct {
-	Path string `json:"path"` // as the run wrote it (resolved against the recipe's folder)
+	Path string `json:"path"` // relative to the ledger's folder, with forward slashes
 	Old  string `json:"old_sha256"`
 	New  string `json:"new_sha256"`
 }
@@ -69,12 +69,26 @@ func JournalPath(ledgerPath string) string { return ledgerPath + ".pending" }
 // replace.
 func writeJournal(ledgerPath string, records int, tables []renderedTable) error {
 	j := journal{Format: journalFormat, Records: records}
+	base, err := filepath.Abs(filepath.Dir(ledgerPath))
+	if err != nil {
+		return fmt.Errorf("journal: %w", err)
+	}
 	for _, rt := range tables {
 		old, err := fileSum(rt.path)
 		if err != nil {
 			return fmt.Errorf("journal: %w", err)
 		}
-		j.Outputs = append(j.Outputs, journalEntry{Path: rt.path, Old: old, New: sum(rt.data)})
+		// Relative to the ledger's folder, as the ledger names files: the
+		// run that resolves the journal may start in another folder.
+		abs, err := filepath.Abs(rt.path)
+		if err != nil {
+			return fmt.Errorf("journal: %w", err)
+		}
+		rel, err := filepath.Rel(base, abs)
+		if err != nil {
+			return fmt.Errorf("journal: %w", err)
+		}
+		j.Outputs = append(j.Outputs, journalEntry{Path: filepath.ToSlash(rel), Old: old, New: sum(rt.data)})
 	}
 	data, err := json.MarshalIndent(j, "", "  ")
 	if err != nil {
@@ -128,6 +142,13 @@ func recoverJournal(held *ledger.Locked, ledgerPath string, w io.Writer) error {
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&j); err != nil || j.Format != journalFormat {
 		return fmt.Errorf("%s is not a journal of this version of concordat (%v); restore the tables and the ledger from version control and remove it", JournalPath(ledgerPath), err)
+	}
+	base, err := filepath.Abs(filepath.Dir(ledgerPath))
+	if err != nil {
+		return fmt.Errorf("read journal: %w", err)
+	}
+	for i := range j.Outputs {
+		j.Outputs[i].Path = filepath.Join(base, filepath.FromSlash(j.Outputs[i].Path))
 	}
 	recs, err := held.Records()
 	if err != nil {

@@ -3,6 +3,7 @@ package engine
 import (
 	"bytes"
 	"context"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -198,5 +199,35 @@ func TestRunRecoversFirst(t *testing.T) {
 	}
 	if _, err := os.Stat(JournalPath(p.LedgerPath())); !os.IsNotExist(err) {
 		t.Errorf("journal left: %v", err)
+	}
+}
+
+// A run started in the recipe's folder with relative paths dies after
+// moving its tables; the journal is resolved from another folder (as the
+// next run of `concordat run some/dir/recipe.hcl` would): its paths are
+// relative to the ledger's folder, so the right tables are put back and
+// nothing is touched in the folder of the resolving process.
+func TestRecoverFromAnotherFolder(t *testing.T) {
+	p := plan(t, journalRecipe, map[string]string{"plots.csv": journalData})
+	if _, err := Run(context.Background(), p, Options{}); err != nil {
+		t.Fatal(err)
+	}
+	before := snapshot(t, p.Dir)
+	t.Chdir(p.Dir)
+	rel, diags := recipe.Load(filepath.Base(p.Path))
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	crashAfter(t, rel, 2, false)
+	elsewhere := t.TempDir()
+	t.Chdir(elsewhere)
+	if err := Recover(context.Background(), filepath.Join(p.Dir, filepath.Base(p.LedgerPath())), io.Discard); err != nil {
+		t.Fatal(err)
+	}
+	if after := snapshot(t, p.Dir); !equalSnapshots(before, after) {
+		t.Errorf("tables after recovery from another folder differ from the recorded ones")
+	}
+	if entries, _ := os.ReadDir(elsewhere); len(entries) != 0 {
+		t.Errorf("recovery wrote into the folder it ran in: %v", entries)
 	}
 }

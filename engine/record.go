@@ -58,8 +58,12 @@ func (c *Computation) record(plan *recipe.Plan, opts Options, started, finished 
 		})
 	}
 	recipeSum := sha256.Sum256(plan.Source)
+	format := ledger.FormatV1
+	if len(c.cached) > 0 {
+		format = ledger.FormatV2
+	}
 	return ledger.Record{
-		Format:   ledger.FormatV1,
+		Format:   format,
 		Recipe:   ledger.File{Path: relPath(plan.Dir, plan.Path), SHA256: hex.EncodeToString(recipeSum[:]), Bytes: int64(len(plan.Source))},
 		Title:    plan.Title,
 		Tool:     ledger.CurrentTool(version(opts)),
@@ -70,5 +74,6 @@ func (c *Computation) record(plan *recipe.Plan, opts Options, started, finished 
 		Outputs:  outputs,
 		Started:  ledger.Timestamp(started),
 		Finished: ledger.Timestamp(finished),
+		Cached:   c.cached,
 	}, nil
 }

@@ -39,6 +39,10 @@ type Options struct {
 	// Timings, when not nil, receives one line with the time each phase
 	// of the run took (reading, computing, tables, writing).
 	Timings io.Writer
+
+	// CacheDir is the step cache's folder (engine/cache.go); "" means no
+	// cache: every step is computed.
+	CacheDir string
 }
 
 func (o Options) stderr() io.Writer {
@@ -100,6 +104,7 @@ type Computation struct {
 	steps   []ledger.Step
 	tables  []renderedTable
 	clock   *timings
+	cached  []string // tests whose results came from the step cache
 }
 
 // Compute loads the data and computes every result of plan, writing nothing.
@@ -154,15 +159,35 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	}
 	results := make([]Result, total)
 	byTest := map[string][]Result{}
+	// A test whose step the cache holds (engine/cache.go) takes its
+	// results from there and has no cells.
+	cache := openStepCache(opts.CacheDir)
+	inHashes := make([]string, len(plan.Tests))
+	cached := map[string]bool{}
 	at := 0
-	for _, t := range plan.Tests {
+	for ti, t := range plan.Tests {
+		n := len(t.Pairing.Pairs) * len(groupsOf[t.Pairing]) * len(t.Measures)
+		start := at
+		if cache != nil {
+			h, err := stepInputHash(plan, t, inputs, wheres[t.Pairing.Dataset.Name])
+			if err != nil {
+				return nil, err
+			}
+			inHashes[ti] = h
+			if rs, ok := cache.load(cache.key(h), n); ok {
+				copy(results[at:at+n], rs)
+				at += n
+				byTest[t.Name] = results[start:at:at]
+				cached[t.Name] = true
+				continue
+			}
+		}
 		tbl := tables[t.Pairing.Dataset.Name]
 		groups := groupsOf[t.Pairing]
 		srcs := make([]*cellSource, len(groups))
 		for gi, g := range groups {
 			srcs[gi] = newCellSource(t, tbl, g)
 		}
-		start := at
 		for pi := range t.Pairing.Pairs {
 			for gi := range groups {
 				cells = append(cells, cell{src: srcs[gi], pair: pi, at: at})
@@ -214,8 +239,13 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 
 	clock.lap("compute")
 
-	adjustFamilies(plan, results)
+	adjustFamilies(plan, results, cached)
 	comp := &Computation{inputs: inputs, Results: results, clock: clock, steps: make([]ledger.Step, len(plan.Tests))}
+	for _, t := range plan.Tests {
+		if cached[t.Name] {
+			comp.cached = append(comp.cached, t.Name)
+		}
+	}
 	// The step hashes and the outputs are independent of each other: on a
 	// large matrix each is seconds of encoding, so they run side by side.
 	var out errgroup.Group
@@ -224,6 +254,9 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		out.Go(func() error {
 			step, err := stepRecord(plan, t, inputs, wheres[t.Pairing.Dataset.Name], byTest[t.Name])
 			comp.steps[i] = step
+			if err == nil && cache != nil && !cached[t.Name] {
+				cache.store(cache.key(inHashes[i]), byTest[t.Name], step.ResultSHA256)
+			}
 			return err
 		})
 	}

@@ -10,6 +10,7 @@ import (
 	"os/signal"
 	"path/filepath"
 	"runtime/debug"
+	"strings"
 	"syscall"
 
 	"github.com/hashicorp/hcl/v2"
@@ -150,8 +151,13 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	timed := cmd.fs.Bool("timings", false, "print how long reading, computing, tables and writing took (to stderr)")
 	params := paramFlag(cmd.fs) // param.go
 	pin := cmd.fs.Bool("pin", false, "first write each dataset's current sha256 into the recipe as its pin (in place; comments and layout kept)")
+	noCache := cmd.fs.Bool("no-cache", false, "compute every test, even one whose results the step cache holds for the same inputs, settings and build")
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
+	}
+	cacheDir := ""
+	if !*noCache {
+		cacheDir = stepCacheDir()
 	}
 	var timingsTo io.Writer
 	if *timed {
@@ -189,6 +195,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		}
 		rep, err := engine.Run(ctx, plan, engine.Options{
 			Jobs: *jobs, Version: toolVersion(), Stderr: stderr, Progress: terminal(stderr), Timings: timingsTo,
+			CacheDir: cacheDir,
 		})
 		if err != nil {
 			code = max(code, reportError(stderr, path, plan, err))
@@ -352,6 +359,9 @@ func summarise(w io.Writer, path string, plan *recipe.Plan, rep *engine.Report) 
 		fmt.Fprintf(w, " (%d with warnings; see the tables)", warned)
 	}
 	fmt.Fprintf(w, ", run %s\n", short(rep.Record.RunSHA256))
+	if c := rep.Record.Cached; len(c) > 0 {
+		fmt.Fprintf(w, "  from the step cache (same inputs, settings and build; --no-cache recomputes): %s\n", strings.Join(c, ", "))
+	}
 	for _, o := range rep.Outputs {
 		fmt.Fprintf(w, "  wrote %s\n", filepath.Join(plan.Dir, filepath.FromSlash(o.Path)))
 	}
@@ -363,4 +373,18 @@ func short(h string) string {
 		return h[:12]
 	}
 	return h
+}
+
+// stepCacheDir is the step cache's folder: $CONCORDAT_CACHE_DIR when set
+// (empty turns the cache off), else concordat/ in the user's cache folder
+// ($XDG_CACHE_HOME or ~/.cache on Linux), or "" when there is none.
+func stepCacheDir() string {
+	if dir, ok := os.LookupEnv("CONCORDAT_CACHE_DIR"); ok {
+		return dir
+	}
+	base, err := os.UserCacheDir()
+	if err != nil {
+		return ""
+	}
+	return filepath.Join(base, "concordat")
 }

@@ -48,8 +48,8 @@ func Append(path string, rec Record) (Record, error) {
 // appendRecord is Append for a caller that holds the ledger's lock.
 func appendRecord(path string, rec Record) (Record, error) {
 	normalize(&rec)
-	if rec.Format != FormatV1 {
-		return Record{}, fmt.Errorf("append to ledger %q: unsupported format %q", path, rec.Format)
+	if err := checkFormat(&rec); err != nil {
+		return Record{}, fmt.Errorf("append to ledger %q: %w", path, err)
 	}
 	if rec.Settings != nil && !json.Valid(rec.Settings) {
 		return Record{}, fmt.Errorf("append to ledger %q: settings are not valid JSON", path)
@@ -91,8 +91,14 @@ func appendRecord(path string, rec Record) (Record, error) {
 // normalize fills what Append fills before hashing: the format when empty,
 // and empty lists for nil ones.
 func normalize(rec *Record) {
+	if len(rec.Cached) == 0 {
+		rec.Cached = nil
+	}
 	if rec.Format == "" {
 		rec.Format = FormatV1
+		if rec.Cached != nil {
+			rec.Format = FormatV2
+		}
 	}
 	if rec.Tool.Modules == nil {
 		rec.Tool.Modules = []Module{}

@@ -71,8 +71,15 @@ func runHash(r *Record) (string, error) {
 	if settings == nil {
 		settings = json.RawMessage("null")
 	}
+	// FormatV2 adds only a field that is not hashed (Cached), so its
+	// content hashes as FormatV1's: a run that took results from the step
+	// cache has the run hash of the run that computed them.
+	format := r.Format
+	if format == FormatV2 {
+		format = FormatV1
+	}
 	return Hash(content{
-		Format:   r.Format,
+		Format:   format,
 		Recipe:   r.Recipe,
 		Title:    r.Title,
 		Tool:     r.Tool,

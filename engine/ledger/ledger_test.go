@@ -447,3 +447,34 @@ func TestTimestamp(t *testing.T) {
 		t.Errorf("Timestamp = %q, want %q", got, want)
 	}
 }
+
+// TestCachedRecords: a record with Cached is written as FormatV2, reads
+// back with its list, hashes as the same record without it (Cached is not
+// covered by run_sha256), and chains with FormatV1 records; a FormatV1
+// line that carries "cached" is refused with its line number.
+func TestCachedRecords(t *testing.T) {
+	path := ledgerWith(t, 1)
+	plain := sample(1)
+	cached := sample(1)
+	cached.Cached = []string{"shade_grade"}
+	a, err := Append(path, cached)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := Append(path, plain)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.Format != FormatV2 || b.Format != FormatV1 || a.RunSHA256 != b.RunSHA256 {
+		t.Errorf("formats %q, %q and hashes %s, %s; want v2, v1 and equal hashes", a.Format, b.Format, a.RunSHA256, b.RunSHA256)
+	}
+	recs, err := Read(path)
+	if err != nil || len(recs) != 3 || !slices.Equal(recs[1].Cached, []string{"shade_grade"}) || recs[2].Cached != nil {
+		t.Fatalf("Read = %d records, %v; err %v", len(recs), recs, err)
+	}
+	ls := lines(t, path)
+	ls[1] = bytes.Replace(ls[1], []byte(`"format":"concordat-ledger/2"`), []byte(`"format":"concordat-ledger/1"`), 1)
+	writeLines(t, path, ls)
+	_, err = Read(path)
+	wantChainError(t, err, 2)
+}

@@ -80,8 +80,8 @@ func verify(path string, data []byte) ([]Record, []byte, error) {
 		if err != nil {
 			return fail("%v", err)
 		}
-		if rec.Format != FormatV1 {
-			return fail("unsupported format %q (want %q)", rec.Format, FormatV1)
+		if err := checkFormat(&rec); err != nil {
+			return fail("%v", err)
 		}
 		want, err := runHash(&rec)
 		if err != nil {
@@ -123,4 +123,16 @@ func parseLine(line []byte) (Record, error) {
 		return Record{}, errors.New("not a ledger record: text after the record")
 	}
 	return rec, nil
+}
+
+// checkFormat refuses a record of an unknown format, and a FormatV1 record
+// with the FormatV2 field.
+func checkFormat(rec *Record) error {
+	switch {
+	case rec.Format == FormatV1 && rec.Cached != nil:
+		return fmt.Errorf("format %q has no \"cached\" field (want %q)", FormatV1, FormatV2)
+	case rec.Format == FormatV1, rec.Format == FormatV2:
+		return nil
+	}
+	return fmt.Errorf("unsupported format %q (want %q or %q)", rec.Format, FormatV1, FormatV2)
 }

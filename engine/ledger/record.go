@@ -11,8 +11,15 @@ import (
 )
 
 // FormatV1 identifies the first version of the record layout. Read refuses
-// records of any other format.
+// records of any format but FormatV1 and FormatV2.
 const FormatV1 = "concordat-ledger/1"
+
+// FormatV2 is FormatV1 with Cached: a record whose run took some results
+// from the step cache. Like the times, Cached is not covered by
+// run_sha256, so a run and its cached rerun hash the same. Append writes
+// FormatV1 when Cached is empty, so that records without it are as they
+// always were.
+const FormatV2 = "concordat-ledger/2"
 
 // A Record is one run of a recipe, stored as one JSON line. The JSON keys
 // and their order are fixed by the struct.
@@ -44,6 +51,11 @@ type Record struct {
 
 	Started  string `json:"started"`  // RFC 3339, UTC (see Timestamp); never hashed into RunSHA256
 	Finished string `json:"finished"` // RFC 3339, UTC; never hashed into RunSHA256
+
+	// Cached names the tests whose results the run took from the step
+	// cache rather than computing them (FormatV2 only; never hashed into
+	// RunSHA256).
+	Cached []string `json:"cached,omitempty"`
 }
 
 // A File is a file that a run read, named relative to the ledger's folder
