@@ -265,7 +265,7 @@ func (j job) measure(ctx context.Context, r runner, runs int, bin string, rs rSt
 				return rw, err
 			}
 		}
-		s, err := r.run(ctx, dir, []string{bin, "run", "--timings", "recipe.hcl"})
+		s, err := r.run(ctx, dir, []string{bin, "run", "--timings", "--no-cache", "recipe.hcl"})
 		if errors.Is(err, errTimeout) {
 			logf("%s: concordat run %d: timed out after %s", it.name, i+1, r.timeout)
 			rw.concordat.timedOut = true

@@ -253,7 +253,8 @@ func (mx *MonotoneX) CheckY(y MonotoneY) MonotoneCheck {
 	}
 	bounds, order, d := mx.bounds, mx.order, y.d
 	k := len(bounds) - 1
-	w, m := make([]float64, k), make([]float64, k)
+	var wA, mA [monotoneMaxBins]float64
+	w, m := wA[:k], mA[:k]
 	var q2, rss4 float64 // 4·TSS and 4·RSS_free
 	for j := range k {
 		s, q := gatherSums(order[bounds[j]:bounds[j+1]], d)
@@ -286,12 +287,15 @@ func gatherSums(order []int32, d []int16) (s, q int64) {
 func (mx *MonotoneX) finish(w, m []float64, tss, rssFree float64) MonotoneCheck {
 	res := mx.notApplicable()
 	n, k := mx.n, len(w)
-	up := Isotonic(m, w)
-	neg := make([]float64, k)
+	// At most monotoneMaxBins groups: the fits live on the stack.
+	var upA, negA, downA [monotoneMaxBins]float64
+	var blockA [monotoneMaxBins]isoBlock
+	up, neg, down := upA[:k], negA[:k], downA[:k]
+	isotonicInto(up, m, w, blockA[:0])
 	for j := range m {
 		neg[j] = -m[j]
 	}
-	down := Isotonic(neg, w)
+	isotonicInto(down, neg, w, blockA[:0])
 	var tUp, tDown float64
 	for j := range m {
 		tUp += w[j] * (m[j] - up[j]) * (m[j] - up[j])
@@ -379,13 +383,22 @@ func Isotonic(y, w []float64) []float64 {
 	if w != nil && len(w) != len(y) {
 		panic(fmt.Sprintf("stats: Isotonic: y has %d values and w has %d", len(y), len(w)))
 	}
-	// A block is a run of pooled points: its weighted mean, total weight and
-	// one past its last index.
-	type block struct {
-		mean, weight float64
-		end          int
-	}
-	blocks := make([]block, 0, 16)
+	f := make([]float64, len(y))
+	isotonicInto(f, y, w, make([]isoBlock, 0, 16))
+	return f
+}
+
+// isoBlock is a run of pooled points in Isotonic: its weighted mean, total
+// weight and one past its last index.
+type isoBlock struct {
+	mean, weight float64
+	end          int
+}
+
+// isotonicInto is Isotonic writing the fit into f (len(y) values), with
+// blocks as scratch: MonotoneX.Check fits ten group means half a million
+// times for a 1000-column matrix, and allocating was most of its cost.
+func isotonicInto(f, y, w []float64, blocks []isoBlock) {
 	for i, v := range y {
 		wi := 1.0
 		if w != nil {
@@ -397,18 +410,17 @@ func Isotonic(y, w []float64) []float64 {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			panic(fmt.Sprintf("stats: Isotonic: value %v at index %d", v, i))
 		}
-		cur := block{mean: v, weight: wi, end: i + 1}
+		cur := isoBlock{mean: v, weight: wi, end: i + 1}
 		for len(blocks) > 0 && blocks[len(blocks)-1].mean > cur.mean {
 			prev := blocks[len(blocks)-1]
 			blocks = blocks[:len(blocks)-1]
 			tw := prev.weight + cur.weight
 			// prev.mean + (cur.mean − prev.mean)·cur.weight/tw stays
 			// between the two means, which a ratio of sums may not.
-			cur = block{mean: prev.mean + (cur.mean-prev.mean)*(cur.weight/tw), weight: tw, end: cur.end}
+			cur = isoBlock{mean: prev.mean + (cur.mean-prev.mean)*(cur.weight/tw), weight: tw, end: cur.end}
 		}
 		blocks = append(blocks, cur)
 	}
-	f := make([]float64, len(y))
 	start := 0
 	for _, b := range blocks {
 		for i := start; i < b.end; i++ {
@@ -416,5 +428,4 @@ func Isotonic(y, w []float64) []float64 {
 		}
 		start = b.end
 	}
-	return f
 }
