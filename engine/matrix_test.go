@@ -1,7 +1,10 @@
 package engine
 
 import (
+	"bytes"
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -10,6 +13,7 @@ import (
 	"testing"
 
 	"concordat/engine/stats"
+	"concordat/io/render"
 	"concordat/recipe"
 )
 
@@ -212,5 +216,32 @@ table "o" {
 	}
 	if viewed == 0 {
 		t.Fatal("no result dropped rows: the test exercises nothing")
+	}
+}
+
+// TestResultHashChunks: a long result list is hashed chunk by chunk on all
+// CPUs; the hash must be that of the one JSON text of the whole table.
+func TestResultHashChunks(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 5))
+	for _, n := range []int{1, 32768, 32769, 50000} {
+		res := make([]Result, n)
+		for i := range res {
+			res[i] = Result{Test: "t", X: fmt.Sprint("v", i%7), Y: "w", Group: "all", Measure: "spearman",
+				N: 100 + i%5, Estimate: r.NormFloat64(), Alternative: "two-sided", PValue: r.Float64(),
+				CILow: math.NaN(), CIHigh: math.NaN(), CILevel: math.NaN(), PAdjusted: r.Float64(),
+				AdjustMethod: "none", TiesX: 0.5, TiesY: 0, Warnings: []string{}, Controls: []string{}}
+			if i%3 == 0 {
+				res[i].Warnings = []string{"a \"quoted\" note", "ünïcode"}
+			}
+		}
+		var buf bytes.Buffer
+		if err := render.Encode(&buf, fullTable("", res), render.JSON, -1); err != nil {
+			t.Fatal(err)
+		}
+		sum := sha256.Sum256(buf.Bytes())
+		got, err := resultHash(res)
+		if err != nil || got != hex.EncodeToString(sum[:]) {
+			t.Errorf("n = %d: resultHash = %s, %v; the whole table hashes to %x", n, got, err, sum)
+		}
 	}
 }

@@ -153,10 +153,12 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	// window of one slice (a matrix has hundreds of thousands of results,
 	// which are large), and each test's results are one window of it, as
 	// its cells are contiguous.
-	total := 0
+	total, ncells := 0, 0
 	for _, t := range plan.Tests {
 		total += len(t.Pairing.Pairs) * len(groupsOf[t.Pairing]) * len(t.Measures)
+		ncells += len(t.Pairing.Pairs) * len(groupsOf[t.Pairing])
 	}
+	cells = make([]cell, 0, ncells)
 	results := make([]Result, total)
 	byTest := map[string][]Result{}
 	// A test whose step the cache holds (engine/cache.go) takes its

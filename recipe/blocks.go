@@ -356,6 +356,7 @@ func (d *decoder) decodePairing(b *hclsyntax.Block, datasets *names[*Dataset]) *
 			"A pairing uses either x and y (every x with every y) or columns (every pair among them), "+
 				"not both; this one also sets %s.", other)
 	case hasCols:
+		p.Pairs = make([]Pair, 0, len(cols)*(len(cols)-1)/2)
 		for i := range cols {
 			for j := i + 1; j < len(cols); j++ {
 				p.Pairs = append(p.Pairs, Pair{X: cols[i].s, Y: cols[j].s})
@@ -375,6 +376,7 @@ func (d *decoder) decodePairing(b *hclsyntax.Block, datasets *names[*Dataset]) *
 						"of them, or use columns = [ … ] for every pair among one list.", quote(it.s))
 			}
 		}
+		p.Pairs = make([]Pair, 0, len(x)*len(y))
 		for _, xi := range x {
 			for _, yi := range y {
 				p.Pairs = append(p.Pairs, Pair{X: xi.s, Y: yi.s})

@@ -154,8 +154,11 @@ func computeSeconds(stdout []byte) (float64, bool) {
 
 // inMemorySeconds reads concordat's `run --timings` line from its stderr
 // ("… time: read 1.2 s (…), compute 0.8 s (…), tables 0.1 s (…), write …")
-// and returns compute + tables: the time between reading the data and
-// writing the outputs, the figure comparable to R's in-script time.
+// and returns the compute phase: from the data in memory to every result
+// (estimates, p-values, intervals, notes) in memory, the figure comparable
+// to R's in-script time, which ends with its result table built and
+// before fwrite. The tables phase (encoding the outputs, hashing every
+// result for the ledger) counts with writing.
 func inMemorySeconds(stderr []byte) (float64, bool) {
 	for _, line := range strings.Split(string(stderr), "\n") {
 		_, rest, ok := strings.Cut(line, " time: ")
@@ -166,7 +169,7 @@ func inMemorySeconds(stderr []byte) (float64, bool) {
 		found := 0
 		for _, phase := range strings.Split(rest, ", ") {
 			name, value, ok := strings.Cut(phase, " ")
-			if !ok || (name != "compute" && name != "tables") {
+			if !ok || name != "compute" {
 				continue
 			}
 			num, _, _ := strings.Cut(value, " ")
@@ -177,7 +180,7 @@ func inMemorySeconds(stderr []byte) (float64, bool) {
 			sum += v
 			found++
 		}
-		return sum, found == 2
+		return sum, found == 1
 	}
 	return 0, false
 }

@@ -16,7 +16,7 @@ import (
 type series struct {
 	wall     []float64 // seconds, one per completed run
 	peak     []int64   // bytes, one per completed run
-	compute  []float64 // time between reading and writing, seconds (concordat: --timings' compute + tables; R: its in-script time)
+	compute  []float64 // time from the data in memory to the results in memory, seconds (concordat: --timings' compute phase; R: its in-script time)
 	timedOut bool
 	failed   bool
 }
@@ -113,7 +113,7 @@ func writeReport(w io.Writer, m machine, rows []row) {
 	fmt.Fprintln(w)
 	notes := slices.Clone(m.notes)
 	notes = append(notes,
-		"R ÷ concordat > 1 means concordat is faster. \"in memory\" is the time between reading the data and writing the outputs: for concordat the compute and tables phases of `run --timings` (results with p-values, intervals, notes and the hashes of every result), for R its in-script time around the computation (the estimates and p-values only); these are the figures comparable to the issue's in-memory references.",
+		"R ÷ concordat > 1 means concordat is faster. \"in memory\" is the time from the data in memory to every result in memory: for concordat the compute phase of `run --timings` (estimates, p-values, intervals and notes), for R its in-script time (estimates and p-values, up to its result table and before fwrite); these are the figures comparable to the issue's in-memory references. concordat's tables phase (encoding every output, hashing every result for the ledger) counts with writing, as R's fwrite does.",
 		"agreement: the largest |difference| of the estimates between the two tools' output files, and the largest relative difference of the p-values (asymptotic items only; a permutation p-value differs by sampling).",
 		"R: data.table::fread on every core, cor.test / cor for Spearman, pcaPP::cor.fk and the tie-corrected normal p for Kendall (R's cor is O(n²) for Kendall); each script writes its result with fwrite, as concordat writes a CSV table.")
 	if csvForR {
