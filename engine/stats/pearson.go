@@ -59,7 +59,7 @@ func pearsonCentred(x, y []float64, mx, my float64) float64 {
 // SpearmanRho returns Spearman's rank correlation ρ of x and y: Pearson's r
 // of Rank(x, rule) and Rank(y, rule). With ties this is the exact value; the
 // shortcut 1 − 6Σd²/(n(n²−1)) holds only without ties and is never used.
-// For n ≥ 2¹⁶ each column's sort runs on two goroutines; the result does
+// For n ≥ 2¹⁶ the two columns are ranked concurrently; the result does
 // not depend on it. The result is bit
 // for bit Pearson(Rank(x, rule), Rank(y, rule)), with the same summation
 // order.
@@ -73,11 +73,13 @@ func SpearmanRho(x, y []float64, rule TieRule) float64 {
 	mustMatch(x, y)
 	checkRule(rule)
 	var rx, ry rankMoments
-	// One column after the other: each sort runs on two goroutines
-	// already, and ranking them side by side would fault in a second set
-	// of sort scratch (see radixScratch).
-	rx = rankWithMean(x, rule)
-	ry = rankWithMean(y, rule)
+	// Side by side: each long sort also runs on two goroutines, but the
+	// rank pass after it does not. (The engine ranks the shared columns of
+	// a whole-file run one after the other instead, to hold one set of
+	// sort scratch: engine/measure.go.)
+	both(parallel(len(x)),
+		func() { rx = rankWithMean(x, rule) },
+		func() { ry = rankWithMean(y, rule) })
 	if len(x) < 2 || rx.constant || ry.constant {
 		return math.NaN()
 	}
