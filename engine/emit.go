@@ -237,7 +237,7 @@ func (c *Computation) commit(ctx context.Context, plan *recipe.Plan, opts Option
 		// not wrong, so it is not a failure.
 		fmt.Fprintf(opts.stderr(), "concordat: warning: %v\n", err)
 	}
-	return &Report{Results: c.Results, Record: stored, Ledger: ledgerPath, Outputs: outputs}, nil
+	return &Report{Results: c.Results, Record: stored, Ledger: ledgerPath, Outputs: outputs, Reproductions: c.Reproductions}, nil
 }
 
 // appendRecord appends to the held ledger; tests replace it to make the

@@ -27,7 +27,7 @@ type renderedFigure struct {
 // renderOutputs draws every figure and lays out every table of plan, in
 // recipe order (tables, then figures), ready for the Batch. Figures come
 // first in the work because HTML tables embed them.
-func renderOutputs(plan *recipe.Plan, byTest map[string][]Result, data map[string]*dataset.Table, groupsOf map[*recipe.Pairing][]group, workers int) ([]renderedTable, error) {
+func renderOutputs(plan *recipe.Plan, byTest map[string][]Result, data map[string]*dataset.Table, groupsOf map[*recipe.Pairing][]group, repros map[string]*Reproduction, workers int) ([]renderedTable, error) {
 	figs := map[string]renderedFigure{}
 	var diags hcl.Diagnostics
 	for _, f := range plan.Figures {
@@ -50,14 +50,17 @@ func renderOutputs(plan *recipe.Plan, byTest map[string][]Result, data map[strin
 	eg.SetLimit(workers)
 	for i, tb := range plan.Tables {
 		eg.Go(func() error {
-			rows := byTest[tb.Tests[0].Name]
+			var rows []Result // none in a reproduction report alone (reproduce_table.go)
+			if len(tb.Tests) > 0 {
+				rows = byTest[tb.Tests[0].Name]
+			}
 			if len(tb.Tests) > 1 {
 				rows = nil
 				for _, t := range tb.Tests {
 					rows = append(rows, byTest[t.Name]...)
 				}
 			}
-			b, err := renderTable(plan, tb, rows, figs)
+			b, err := renderTableWith(plan, tb, rows, figs, repros)
 			out[i] = renderedTable{name: tb.Name, path: tb.Path, format: tb.Format.String(), data: b}
 			return err
 		})

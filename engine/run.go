@@ -72,6 +72,10 @@ type Report struct {
 	Record  ledger.Record   // the ledger record appended
 	Ledger  string          // path of the ledger file
 	Outputs []ledger.Output // tables written
+
+	// Reproductions compare the recipe's published tables with the
+	// results, in recipe order (reproduce.go).
+	Reproductions []*Reproduction
 }
 
 // Run computes plan, writes its tables and appends one ledger record. On
@@ -105,6 +109,9 @@ type Computation struct {
 	tables  []renderedTable
 	clock   *timings
 	cached  []string // tests whose results came from the step cache
+
+	// Reproductions compare the published tables with Results.
+	Reproductions []*Reproduction
 }
 
 // Compute loads the data and computes every result of plan, writing nothing.
@@ -242,7 +249,17 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	clock.lap("compute")
 
 	adjustFamilies(plan, results, cached)
-	comp := &Computation{inputs: inputs, Results: results, clock: clock, steps: make([]ledger.Step, len(plan.Tests))}
+	// Published tables: each printed value against its result, and the
+	// conventions that reproduce those that differ (reproduce.go).
+	repros, err := reproduce(ctx, plan, opts, byTest, tables, groupsOf)
+	if err != nil {
+		return nil, err
+	}
+	reproByName := map[string]*Reproduction{}
+	for _, rp := range repros {
+		reproByName[rp.Published.Name] = rp
+	}
+	comp := &Computation{inputs: inputs, Results: results, clock: clock, steps: make([]ledger.Step, len(plan.Tests)), Reproductions: repros}
 	for _, t := range plan.Tests {
 		if cached[t.Name] {
 			comp.cached = append(comp.cached, t.Name)
@@ -265,11 +282,18 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	// Tables and figures (engine/figure.go), rendered but not yet written.
 	out.Go(func() error {
 		var err error
-		comp.tables, err = renderOutputs(plan, byTest, tables, groupsOf, opts.jobs())
+		comp.tables, err = renderOutputs(plan, byTest, tables, groupsOf, reproByName, opts.jobs())
 		return err
 	})
 	if err := out.Wait(); err != nil {
 		return nil, err
+	}
+	for _, rp := range repros { // after the tests' steps, whose input hashes they cite
+		step, err := reproductionStep(rp, comp.steps[:len(plan.Tests)])
+		if err != nil {
+			return nil, err
+		}
+		comp.steps = append(comp.steps, step)
 	}
 	clock.lap("tables")
 	return comp, nil

@@ -18,7 +18,7 @@ var (
 	topSpec = spec{
 		where:  "at the top level of a recipe",
 		attrs:  []string{"title", "seed"},
-		blocks: []string{"param", "dataset", "pairing", "ties", "test", "table", "figure"},
+		blocks: []string{"param", "dataset", "pairing", "ties", "test", "table", "figure", "published"},
 	}
 	datasetSpec = spec{
 		where:    "in a dataset block",
@@ -53,8 +53,9 @@ var (
 	tableSpec = spec{
 		where: "in a table block",
 		attrs: []string{"tests", "format", "path", "digits",
-			"style", "layout", "columns", "groups", "show", "marks", "caption", "label", "figures"},
-		required: []string{"tests", "path"},
+			"style", "layout", "columns", "groups", "show", "marks", "caption", "label", "figures",
+			"reproduction"},
+		required: []string{"path"}, // and tests or reproduction (decodeTableReproduction)
 	}
 )
 
@@ -107,9 +108,13 @@ func (d *decoder) decodeRecipe(body *hclsyntax.Body) *Plan {
 			plan.Figures = append(plan.Figures, f)
 		}
 	}
+	// Published tables (published.go) are compared with tests' results,
+	// and tables can write their reproduction reports.
+	published, pubs := d.decodePublishedBlocks(byType["published"], tests)
+	plan.Published = pubs
 	tables := newNames[*Table]("table", "table", "tables")
 	for _, b := range byType["table"] {
-		if t := d.decodeTable(b, tests, figures); tables.add(d, b, t) {
+		if t := d.decodeTable(b, tests, figures, published); tables.add(d, b, t) {
 			plan.Tables = append(plan.Tables, t)
 		}
 	}
@@ -636,7 +641,7 @@ func (d *decoder) decodeInterval(b *hclsyntax.Block) *Interval {
 	return iv
 }
 
-func (d *decoder) decodeTable(b *hclsyntax.Block, tests *names[*Test], figures *names[*Figure]) *Table {
+func (d *decoder) decodeTable(b *hclsyntax.Block, tests *names[*Test], figures *names[*Figure], published *names[*Published]) *Table {
 	c := d.blockContent(b, tableSpec)
 	t := &Table{Name: b.Labels[0], Digits: defaultDigits, DeclRange: b.DefRange()}
 	if a := c.attrs["tests"]; a != nil {
@@ -690,6 +695,7 @@ func (d *decoder) decodeTable(b *hclsyntax.Block, tests *names[*Test], figures *
 		t.Digits = int(n)
 	}
 	d.decodePresent(b, c, t, figures)
+	d.decodeTableReproduction(b, c, t, published) // published.go
 	return t
 }
 

@@ -66,6 +66,7 @@ type spec struct {
 var labelCount = map[string]int{
 	"dataset": 1, "pairing": 1, "ties": 1, "test": 1, "table": 1, "figure": 1,
 	"column": 1, "interval": 0, "param": 1,
+	"published": 1, "row": 0, // published.go
 }
 
 // attr is an argument whose value has been evaluated once.

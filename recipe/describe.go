@@ -116,7 +116,12 @@ func (p *Plan) Describe(w io.Writer) error {
 		for i, tt := range t.Tests {
 			names[i] = tt.Name
 		}
-		b.WriteString("tests = " + hclList(names) + "\n")
+		if len(names) > 0 {
+			b.WriteString("tests = " + hclList(names) + "\n")
+		}
+		if t.Reproduction != nil {
+			b.WriteString("reproduction = " + quote(t.Reproduction.Name) + "\n")
+		}
 		b.WriteString("format = " + quote(t.Format.String()) + "\n")
 		b.WriteString("path = " + quote(t.PathAsWritten) + resolvedNote(t.PathAsWritten, t.Path) + "\n")
 		b.WriteString("digits = " + strconv.Itoa(t.Digits) + "\n")
@@ -125,6 +130,9 @@ func (p *Plan) Describe(w io.Writer) error {
 	}
 	for _, f := range p.Figures {
 		f.describe(&b)
+	}
+	for _, pb := range p.Published {
+		pb.describe(&b)
 	}
 
 	_, err := w.Write(hclwrite.Format([]byte(b.String())))
@@ -216,13 +224,20 @@ func (p *Plan) Settings() any {
 		for i, tt := range t.Tests {
 			names[i] = tt.Name
 		}
-		s.Tables = append(s.Tables, tableSettings{
+		ts := tableSettings{
 			Name: t.Name, Tests: names, Format: t.Format.String(), Path: t.PathAsWritten, Digits: t.Digits,
 			Present: t.Present.settings(),
-		})
+		}
+		if t.Reproduction != nil {
+			ts.Reproduction = t.Reproduction.Name
+		}
+		s.Tables = append(s.Tables, ts)
 	}
 	for _, f := range p.Figures {
 		s.Figures = append(s.Figures, f.settings())
+	}
+	for _, pb := range p.Published {
+		s.Published = append(s.Published, pb.settings())
 	}
 	s.Datasets = nonNil(s.Datasets)
 	s.Pairings = nonNil(s.Pairings)
@@ -254,6 +269,8 @@ type planSettings struct {
 	// are none, so that the settings of a recipe without them are as they
 	// always were.
 	Params []paramSettings `json:"params,omitempty"`
+	// Published tables are left out when there are none, likewise.
+	Published []publishedSettings `json:"published,omitempty"`
 }
 
 type datasetSettings struct {
@@ -320,4 +337,7 @@ type tableSettings struct {
 	// Present is left out for a table with the default layout and style,
 	// so that the settings of such a table are as they always were.
 	Present *presentSettings `json:"present,omitempty"`
+	// Reproduction names the published table whose report the table
+	// writes; left out when none.
+	Reproduction string `json:"reproduction,omitempty"`
 }

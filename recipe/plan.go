@@ -29,6 +29,8 @@ type Plan struct {
 	Tests    []*Test
 	Tables   []*Table
 	Figures  []*Figure // figure blocks, in recipe order (present.go)
+
+	Published []*Published // published tables to reproduce, in recipe order (published.go)
 }
 
 // LedgerPath returns where the run ledger of this recipe lives:
@@ -293,6 +295,11 @@ type Table struct {
 	// How the table is laid out and written (present.go); the zero value
 	// of each is its default.
 	Present
+
+	// Reproduction is the published table whose reproduction report the
+	// table writes (after the tests' results, if it has tests); nil for
+	// none (published.go; the engine side is engine/reproduce.go).
+	Reproduction *Published
 
 	pathRange hcl.Range // where the path was written
 }

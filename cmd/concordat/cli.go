@@ -202,6 +202,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 			continue
 		}
 		summarise(stdout, path, plan, rep)
+		code = max(code, summariseReproductions(stdout, stderr, path, rep)) // reproduce.go
 	}
 	return code
 }
