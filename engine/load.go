@@ -268,7 +268,8 @@ func cellDiagnostic(plan *recipe.Plan, ds *recipe.Dataset, ce *dataset.CellError
 		Subject: ds.DeclRange.Ptr(),
 	}
 	for _, c := range ds.Columns {
-		if c.Name == ce.Column {
+		// A column block may give only a label: then its cells are numbers.
+		if c.Name == ce.Column && c.Levels != nil {
 			d.Summary = "Label not among the declared levels"
 			d.Subject = c.LevelsRange.Ptr()
 			return d
