@@ -25,7 +25,7 @@ import (
 
 // plan writes src as a recipe in a temporary folder (with any extra files)
 // and loads it.
-func plan(t *testing.T, src string, files map[string]string) *recipe.Plan {
+func plan(t testing.TB, src string, files map[string]string) *recipe.Plan {
 	t.Helper()
 	dir := t.TempDir()
 	for name, body := range files {

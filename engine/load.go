@@ -20,6 +20,9 @@ import (
 // recipe text that named it and says what the data has.
 func Check(plan *recipe.Plan) hcl.Diagnostics {
 	var diags hcl.Diagnostics
+	if len(plan.Tests) == 0 { // hostile.go
+		diags = append(diags, nothingToCompute(plan))
+	}
 	for _, ds := range plan.Datasets {
 		f, err := dataset.ParseFormat(string(ds.Format))
 		if err != nil {
@@ -64,7 +67,7 @@ func Check(plan *recipe.Plan) hcl.Diagnostics {
 			if s := recipe.Suggest(name, header); s != "" {
 				detail += fmt.Sprintf(" Did you mean %q?", s)
 			}
-			detail += " Its columns are: " + quoteList(header) + "."
+			detail += " Its columns are: " + quoteList(header) + "." + separatorHint(ds, header) // hostile.go
 			diags = append(diags, &hcl.Diagnostic{
 				Severity: hcl.DiagError, Summary: "Unknown column",
 				Detail: detail, Subject: where.Ptr(),
@@ -190,6 +193,10 @@ func loadDatasets(ctx context.Context, plan *recipe.Plan) (map[string]*dataset.T
 					ds.PathAsWritten, ds.SHA256, t.SHA256, t.Bytes),
 				Subject: ds.SHA256Range.Ptr(),
 			})
+			continue
+		}
+		if t.Rows == 0 { // hostile.go
+			diags = append(diags, noRows(ds))
 			continue
 		}
 		tables[ds.Name] = t

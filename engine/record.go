@@ -53,7 +53,7 @@ func (c *Computation) record(plan *recipe.Plan, opts Options, started, finished 
 	for _, rt := range c.tables {
 		sum := sha256.Sum256(rt.data)
 		outputs = append(outputs, ledger.Output{
-			Table: rt.name, Path: relPath(plan.Dir, rt.path),
+			Table: rt.name, Path: relPath(plan.OutputDir(), rt.path), // recipe/outdir.go
 			Format: rt.format, SHA256: hex.EncodeToString(sum[:]), Bytes: int64(len(rt.data)),
 		})
 	}

@@ -43,6 +43,8 @@ type Options struct {
 	// CacheDir is the step cache's folder (engine/cache.go); "" means no
 	// cache: every step is computed.
 	CacheDir string
+
+	part *partition // a shard's or a merge's cells (shard.go); nil: all of them
 }
 
 func (o Options) stderr() io.Writer {
@@ -206,6 +208,16 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 		byTest[t.Name] = results[start:at:at]
 	}
 
+	// A shard computes only its cells, a merge none: it takes the results
+	// from the shard files (shard.go).
+	if opts.part != nil {
+		keep, err := opts.part.begin(plan, groupsOf, inputs, results)
+		if err != nil {
+			return nil, err
+		}
+		cells = slices.DeleteFunc(cells, func(c cell) bool { return !keep(c.at) })
+	}
+
 	prog := newProgress(opts.Progress, len(cells))
 	defer prog.finish()
 	// The sort scratch kept between columns is not needed once every
@@ -247,6 +259,11 @@ func Compute(ctx context.Context, plan *recipe.Plan, opts Options) (*Computation
 	}
 
 	clock.lap("compute")
+	if opts.part != nil && opts.part.shard != nil {
+		// A shard's results are adjusted, hashed and laid out in tables
+		// by the merge, over every cell.
+		return &Computation{inputs: inputs, Results: results, clock: clock}, nil
+	}
 
 	adjustFamilies(plan, results, cached)
 	// Published tables: each printed value against its result, and the

@@ -76,6 +76,9 @@ func ParseFiles(src []byte, filename string) (*Plan, map[string]*hcl.File, hcl.D
 
 // parseFiles is ParseFiles with parameter overrides (param.go).
 func parseFiles(src []byte, filename string, overrides []Override) (*Plan, map[string]*hcl.File, hcl.Diagnostics) {
+	if diags := checkNesting(src, filename); diags.HasErrors() { // hostile.go
+		return nil, map[string]*hcl.File{}, diags // no source line: it may be megabytes long
+	}
 	file, diags := hclsyntax.ParseConfig(src, filename, hcl.Pos{Line: 1, Column: 1, Byte: 0})
 	files := map[string]*hcl.File{filename: file}
 	if diags.HasErrors() {

@@ -2,6 +2,7 @@ package recipe
 
 import (
 	"fmt"
+	"path/filepath"
 
 	"github.com/hashicorp/hcl/v2"
 
@@ -18,6 +19,7 @@ type Plan struct {
 	Name   string               // file name without .hcl; the ledger is <Dir>/<Name>.ledger.jsonl
 	Source []byte               // the recipe bytes, for hashing
 	Files  map[string]*hcl.File // parsed files, for hcl.NewDiagnosticTextWriter
+	OutDir string               // set by ConfineOutputs (outdir.go): outputs and the ledger go here; "" means Dir
 
 	Title  string
 	Seed   int64    // default 1
@@ -34,8 +36,13 @@ type Plan struct {
 }
 
 // LedgerPath returns where the run ledger of this recipe lives:
-// <Dir>/<Name>.ledger.jsonl.
-func (p *Plan) LedgerPath() string { return ledger.PathFor(p.Path) }
+// <Dir>/<Name>.ledger.jsonl, or in OutDir when it is set (outdir.go).
+func (p *Plan) LedgerPath() string {
+	if p.OutDir != "" {
+		return filepath.Join(p.OutDir, filepath.Base(ledger.PathFor(p.Path)))
+	}
+	return ledger.PathFor(p.Path)
+}
 
 // DataFormat is the file format of a dataset.
 type DataFormat string

@@ -37,6 +37,8 @@ const usage = `usage: concordat <command> [flags] [arguments]
 
 commands:
   run RECIPE...      compute the recipe's tests, write its tables, append to its ledger
+                     (--shard K/N: one part of the run, for a job array)
+  merge RECIPE       combine the shard files of a recipe into its tables and ledger record
   check RECIPE...    validate recipes against their data headers and print the plan; compute nothing
   verify RECIPE...   recompute without writing and compare with the ledger; exit 3 on any difference
   history RECIPE     the ledger's records, newest first (--prov: as W3C PROV-JSON)
@@ -66,6 +68,8 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return cmdVerify(rest, stdout, stderr) // verify.go
 	case "history":
 		return cmdHistory(rest, stdout, stderr) // history.go
+	case "merge":
+		return cmdMerge(rest, stdout, stderr) // shard.go
 	case "version", "--version":
 		fmt.Fprintf(stdout, "concordat %s\n", toolVersion())
 		return exitOK
@@ -146,25 +150,34 @@ func (c *command) parse(args []string, stdout, stderr io.Writer) int {
 }
 
 func cmdRun(args []string, stdout, stderr io.Writer) int {
-	cmd := newCommand("run", "Compute every test of each recipe, write its tables and append one record to\nthe recipe's ledger (<recipe>.ledger.jsonl beside it). A failed run writes nothing.")
-	jobs := cmd.fs.IntP("jobs", "j", 0, "worker count (default: the number of CPUs); results do not depend on it")
+	cmd := newCommand("run", "Compute every test of each recipe, write its tables and append one record to\nthe recipe's ledger (<recipe>.ledger.jsonl beside it). A failed run writes nothing.\nSeveral recipes run at once (a batch): one summary line each, exit code the worst.")
+	jobs := cmd.fs.IntP("jobs", "j", 0, "workers of the whole command (default: the number of CPUs), shared by the recipes running at once; results do not depend on it")
 	timed := cmd.fs.Bool("timings", false, "print how long reading, computing, tables and writing took (to stderr)")
 	params := paramFlag(cmd.fs) // param.go
 	pin := cmd.fs.Bool("pin", false, "first write each dataset's current sha256 into the recipe as its pin (in place; comments and layout kept)")
 	noCache := cmd.fs.Bool("no-cache", false, "compute every test, even one whose results the step cache holds for the same inputs, settings and build")
+	// Batches, output folders and shards (batch.go, shard.go).
+	atOnce := cmd.fs.Int("at-once", 0, "recipes run at the same time (default: the smaller of --jobs and the number of recipes); each gets --jobs/at-once workers")
+	outDir := outFlag(cmd.fs)
+	shard := cmd.fs.String("shard", "", "compute only shard `K/N` (1 ≤ K ≤ N) of each recipe's cells and write a shard file instead of tables; concordat merge combines the N files")
+	shardFile := cmd.fs.String("shard-file", "", "with --shard: write the shard file here (default: <recipe>.shard-K-of-N.json beside the ledger)")
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
-	cacheDir := ""
+	cfg := runConfig{jobs: *jobs, atOnce: *atOnce, pin: *pin, timings: *timed, outDir: *outDir, shardFile: *shardFile}
 	if !*noCache {
-		cacheDir = stepCacheDir()
+		cfg.cacheDir = stepCacheDir()
 	}
-	var timingsTo io.Writer
-	if *timed {
-		timingsTo = stderr
+	var ok bool
+	if cfg.given, ok = overrides(cmd, *params, stderr); !ok {
+		return exitUsage
 	}
-	given, ok := overrides(cmd, *params, stderr)
-	if !ok {
+	if code := cfg.parseShard(cmd, *shard, stderr); code >= 0 { // shard.go
+		return code
+	}
+	if *atOnce < 0 || *jobs < 0 {
+		fmt.Fprintf(stderr, "concordat: error: --jobs and --at-once take a positive count (0: the default)\n")
+		cmd.usage(stderr)
 		return exitUsage
 	}
 	// The first Ctrl-C (or SIGTERM from a scheduler) cancels the run, which
@@ -173,43 +186,13 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	context.AfterFunc(ctx, stop)
-
-	code := exitOK
-	for _, path := range cmd.fs.Args() {
-		if !recipeExists(path, stderr) {
-			code = max(code, exitUsage)
-			continue
-		}
-		if *pin {
-			if c := pinRecipe(path, given, stdout, stderr); c != exitOK { // pin.go
-				code = max(code, c)
-				continue
-			}
-		}
-		plan, files, diags := recipe.LoadWith(path, given)
-		printDiags(stderr, path, files, diags) // errors, or warnings only
-		if diags.HasErrors() {
-			fmt.Fprintf(stderr, "concordat: error: %s: %s in the recipe; nothing was computed\n", path, plural(errorCount(diags), "problem"))
-			code = max(code, exitUsage)
-			continue
-		}
-		rep, err := engine.Run(ctx, plan, engine.Options{
-			Jobs: *jobs, Version: toolVersion(), Stderr: stderr, Progress: terminal(stderr), Timings: timingsTo,
-			CacheDir: cacheDir,
-		})
-		if err != nil {
-			code = max(code, reportError(stderr, path, plan, err))
-			continue
-		}
-		summarise(stdout, path, plan, rep)
-		code = max(code, summariseReproductions(stdout, stderr, path, rep)) // reproduce.go
-	}
-	return code
+	return runRecipes(ctx, cmd.fs.Args(), cfg, stdout, stderr) // batch.go
 }
 
 func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	cmd := newCommand("check", "Validate each recipe and the headers of its data files, and print the resolved\nplan with every default made explicit. Nothing is computed or written.")
 	params := paramFlag(cmd.fs) // param.go
+	outDir := outFlag(cmd.fs)   // batch.go
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
@@ -224,6 +207,9 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 			continue
 		}
 		plan, files, diags := recipe.LoadWith(path, given)
+		if !diags.HasErrors() {
+			diags = append(diags, plan.ConfineOutputs(*outDir)...) // recipe/outdir.go
+		}
 		if !diags.HasErrors() {
 			diags = append(diags, engine.Check(plan)...)
 		}
@@ -364,7 +350,7 @@ func summarise(w io.Writer, path string, plan *recipe.Plan, rep *engine.Report) 
 		fmt.Fprintf(w, "  from the step cache (same inputs, settings and build; --no-cache recomputes): %s\n", strings.Join(c, ", "))
 	}
 	for _, o := range rep.Outputs {
-		fmt.Fprintf(w, "  wrote %s\n", filepath.Join(plan.Dir, filepath.FromSlash(o.Path)))
+		fmt.Fprintf(w, "  wrote %s\n", filepath.Join(plan.OutputDir(), filepath.FromSlash(o.Path)))
 	}
 	fmt.Fprintf(w, "  ledger %s\n", rep.Ledger)
 }

@@ -20,6 +20,7 @@ func cmdHistory(args []string, stdout, stderr io.Writer) int {
 	cmd.args = "RECIPE"
 	asProv := cmd.fs.Bool("prov", false, "write W3C PROV-JSON (entities: recipe, inputs, results, tables; activities: runs and tests; agent: the tool)")
 	output := cmd.fs.StringP("output", "o", "", "with --prov, write the document to this file (atomically) instead of standard output")
+	outDir := cmd.fs.String("out", "", "the `DIR` a run with --out wrote to: its ledger is there")
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
@@ -37,7 +38,7 @@ func cmdHistory(args []string, stdout, stderr io.Writer) int {
 	if !recipeExists(path, stderr) {
 		return exitUsage
 	}
-	ledgerPath := ledger.PathFor(path)
+	ledgerPath := ledgerFor(path, *outDir) // outdir.go
 	recs, err := ledger.Read(ledgerPath)
 	var chain *ledger.ChainError
 	switch {

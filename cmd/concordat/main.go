@@ -2,6 +2,8 @@
 // writes the tables and appends a hashed provenance ledger.
 //
 //	concordat run RECIPE...      compute, write outputs, append to the ledger
+//	                             (--shard K/N: one part, for a job array)
+//	concordat merge RECIPE       combine shard files into the tables and ledger
 //	concordat check RECIPE...    validate recipe and data headers, print the plan
 //	concordat verify RECIPE...   recompute without writing; compare with the ledger
 //	concordat history RECIPE     the ledger, newest first, or as W3C PROV-JSON

@@ -32,6 +32,10 @@ func TestScripts(t *testing.T) {
 		Dir:           filepath.Join("testdata", "script"),
 		UpdateScripts: *update,
 		Setup: func(env *testscript.Env) error {
+			// A step cache of the script's own: HOME is /no-home, which a
+			// test run as root can create, and a cache there would be
+			// shared by every script and every test run.
+			env.Setenv("CONCORDAT_CACHE_DIR", filepath.Join(env.WorkDir, ".cache"))
 			for _, dir := range []string{"recipes", filepath.Join("testdata", "demo")} {
 				if err := copyTree(filepath.Join("..", "..", dir), filepath.Join(env.WorkDir, "repo", dir)); err != nil {
 					return err
@@ -50,6 +54,8 @@ func TestScripts(t *testing.T) {
 			"latex":      cmdLaTeX,
 			"replace":    cmdReplace,  // verify_test.go
 			"truncate":   cmdTruncate, // verify_test.go
+			"unescape":   cmdUnescape, // hostile_test.go
+			"repeat":     cmdRepeat,   // hostile_test.go
 		},
 	})
 }

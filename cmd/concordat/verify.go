@@ -25,6 +25,7 @@ func cmdVerify(args []string, stdout, stderr io.Writer) int {
 	jobs := cmd.fs.IntP("jobs", "j", 0, "worker count (default: the number of CPUs); results do not depend on it")
 	record := cmd.fs.Int("record", 0, "compare with record N of the ledger (1 is the first; see concordat history) instead of the last")
 	params := cmd.fs.StringArray("param", nil, "set a recipe parameter, `name=value`, in place of the recorded one (repeatable)")
+	outDir := cmd.fs.String("out", "", "the `DIR` a run with --out wrote to: its ledger and tables are there")
 	if code := cmd.parse(args, stdout, stderr); code >= 0 {
 		return code
 	}
@@ -43,16 +44,16 @@ func cmdVerify(args []string, stdout, stderr io.Writer) int {
 
 	code := exitOK
 	for _, path := range cmd.fs.Args() {
-		code = max(code, verifyOne(ctx, path, *record, *jobs, given, stdout, stderr))
+		code = max(code, verifyOne(ctx, path, *record, *jobs, given, *outDir, stdout, stderr))
 	}
 	return code
 }
 
-func verifyOne(ctx context.Context, path string, record, jobs int, given []recipe.Override, stdout, stderr io.Writer) int {
+func verifyOne(ctx context.Context, path string, record, jobs int, given []recipe.Override, outDir string, stdout, stderr io.Writer) int {
 	if !recipeExists(path, stderr) {
 		return exitUsage
 	}
-	target, err := verify.Open(path, record)
+	target, err := verify.OpenLedger(ledgerFor(path, outDir), record) // outdir.go
 	var chain *ledger.ChainError
 	var rng *verify.RecordRangeError
 	switch {
@@ -81,6 +82,9 @@ func verifyOne(ctx context.Context, path string, record, jobs int, given []recip
 		}
 	}
 	plan, files, diags := recipe.LoadWith(path, append(recorded, given...))
+	if !diags.HasErrors() && outDir != "" {
+		diags = append(diags, plan.ConfineOutputs(outDir)...) // where that run wrote
+	}
 	printDiags(stderr, path, files, diags)
 	if diags.HasErrors() {
 		fmt.Fprintf(stderr, "concordat: error: %s: %s in the recipe; nothing was verified\n", path, plural(errorCount(diags), "problem"))

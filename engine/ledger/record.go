@@ -58,8 +58,9 @@ type Record struct {
 	Cached []string `json:"cached,omitempty"`
 }
 
-// A File is a file that a run read, named relative to the ledger's folder
-// with forward slashes.
+// A File is a file that a run read, named relative to the recipe's folder
+// (which holds the ledger, unless the run was given an output folder) with
+// forward slashes.
 type File struct {
 	Path   string `json:"path"`
 	SHA256 string `json:"sha256"` // lowercase hex
@@ -69,7 +70,7 @@ type File struct {
 // An Input is a data set that a run read.
 type Input struct {
 	Name   string `json:"name"`   // the dataset block's label
-	Path   string `json:"path"`   // relative to the ledger's folder, forward slashes
+	Path   string `json:"path"`   // relative to the recipe's folder, forward slashes
 	SHA256 string `json:"sha256"` // lowercase hex of the file's bytes
 	Bytes  int64  `json:"bytes"`
 	Rows   int64  `json:"rows"` // data rows read

@@ -32,7 +32,12 @@ type Target struct {
 // *ledger.ChainError naming its line; an empty one wraps ErrNoRecords; an n
 // beyond the ledger is a *RecordRangeError.
 func Open(recipePath string, n int) (*Target, error) {
-	path := ledger.PathFor(recipePath)
+	return OpenLedger(ledger.PathFor(recipePath), n)
+}
+
+// OpenLedger is Open for the ledger at path (a run with --out keeps it in
+// its output folder: recipe.Plan.LedgerPath).
+func OpenLedger(path string, n int) (*Target, error) {
 	recs, err := ledger.Read(path)
 	if err != nil {
 		return nil, err
@@ -319,7 +324,7 @@ func (c *comparison) movedValues(test string) []string {
 			continue
 		}
 		o, ok := c.recordedOutput(t.Name)
-		if !ok || filepath.Join(c.plan.Dir, filepath.FromSlash(o.Path)) != t.Path {
+		if !ok || filepath.Join(c.plan.OutputDir(), filepath.FromSlash(o.Path)) != t.Path {
 			continue
 		}
 		data, err := os.ReadFile(t.Path)

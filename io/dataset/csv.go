@@ -370,6 +370,9 @@ func (p *textParser) cell(cc *chunkColumn, col *textColumn, cell []byte) *cellPr
 	case Label:
 		code, ok := cc.index[string(cell)]
 		if !ok {
+			if p := labelProblem(string(cell)); p != nil { // table.go
+				return p
+			}
 			l := string(cell)
 			code = int32(len(cc.dict))
 			cc.dict = append(cc.dict, l)

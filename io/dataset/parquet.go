@@ -31,7 +31,8 @@ var batchRows = 1 << 16
 func openParquet(path string, r parquet.ReaderAtSeeker) (*file.Reader, *pqarrow.FileReader, error) {
 	pf, err := file.NewParquetReader(r)
 	if err != nil {
-		return nil, nil, fmt.Errorf("read dataset %q: not a readable Parquet file: %w", path, err)
+		size, _ := r.Seek(0, io.SeekEnd)
+		return nil, nil, notParquet(path, r, size, err) // notparquet.go
 	}
 	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(batchRows)}, memory.DefaultAllocator)
 	if err != nil {
@@ -214,7 +215,7 @@ func parseParquet(ctx context.Context, spec Spec, f *os.File, size int64) (*Tabl
 	open := func(opts ...file.ReadOption) (*file.Reader, *pqarrow.FileReader, error) {
 		pf, err := file.NewParquetReader(io.NewSectionReader(f, 0, size), append(opts, file.WithReadProps(props))...)
 		if err != nil {
-			return nil, nil, fmt.Errorf("read dataset %q: not a readable Parquet file: %w", spec.Path, err)
+			return nil, nil, notParquet(spec.Path, f, size, err) // notparquet.go
 		}
 		fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: int64(batchRows)}, memory.DefaultAllocator)
 		if err != nil {

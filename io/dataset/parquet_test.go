@@ -205,7 +205,7 @@ func TestReadParquetTypeErrors(t *testing.T) {
 		t.Errorf("err = %v, want a MissingColumnError suggesting yield_kg", err)
 	}
 	// A CSV file is not a Parquet file.
-	if _, err := Read(context.Background(), Spec{Path: "testdata/orchard_harvest.csv", Format: Parquet}); err == nil || !strings.Contains(err.Error(), "not a readable Parquet file") {
+	if _, err := Read(context.Background(), Spec{Path: "testdata/orchard_harvest.csv", Format: Parquet}); err == nil || !strings.Contains(err.Error(), "not a Parquet file") {
 		t.Errorf("CSV as Parquet: err = %v", err)
 	}
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 )
 
 // ColumnSpec asks for one column of a file.
@@ -172,6 +173,9 @@ func (s *sink) add(cell string) *cellProblem {
 	case Label:
 		l, ok := s.intern[cell]
 		if !ok {
+			if p := labelProblem(cell); p != nil {
+				return p
+			}
 			l = strings.Clone(cell)
 			s.intern[l] = l
 		}
@@ -190,6 +194,17 @@ func (s *sink) addMissing() {
 		return
 	}
 	c.Values = append(c.Values, nan)
+}
+
+// labelProblem refuses a label that is not UTF-8 text: it would name a
+// group in every table, and tables are UTF-8. Checked once per distinct
+// label. (A numeric or ordinal cell with such bytes is refused anyway, as
+// not a number or not a level.)
+func labelProblem(cell string) *cellProblem {
+	if utf8.ValidString(cell) {
+		return nil
+	}
+	return &cellProblem{reason: "is not valid UTF-8 text", hint: "save the file as UTF-8; spreadsheet programs offer it as \"CSV UTF-8\""}
 }
 
 // levelProblem explains a label that is not among the levels, with a hint
