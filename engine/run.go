@@ -95,10 +95,15 @@ func Run(ctx context.Context, plan *recipe.Plan, opts Options) (*Report, error) 
 	if err != nil {
 		return nil, err
 	}
-	rep, err := comp.commit(ctx, plan, opts, started)
+	return comp.commitTimed(ctx, plan, opts, started)
+}
+
+// commitTimed is commit, closing the write phase of --timings after it.
+func (c *Computation) commitTimed(ctx context.Context, plan *recipe.Plan, opts Options, started time.Time) (*Report, error) {
+	rep, err := c.commit(ctx, plan, opts, started)
 	if err == nil {
-		comp.clock.lap("write")
-		comp.clock.report(plan.Path)
+		c.clock.lap("write")
+		c.clock.report(plan.Path)
 	}
 	return rep, err
 }

@@ -408,12 +408,7 @@ func Merge(ctx context.Context, plan *recipe.Plan, files []*ShardFile, opts Opti
 	if err != nil {
 		return nil, err
 	}
-	rep, err := comp.commit(ctx, plan, opts, started)
-	if err == nil {
-		comp.clock.lap("write")
-		comp.clock.report(plan.Path)
-	}
-	return rep, err
+	return comp.commitTimed(ctx, plan, opts, started)
 }
 
 // ComputeMerge is Merge without writing: the Computation that a single run

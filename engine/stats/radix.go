@@ -220,20 +220,7 @@ func (s *radixScratch) sort(x []float64, who string) {
 func (s *radixScratch) sortSerial(x []float64, who string) {
 	n := len(x)
 	var hist [8][256]uint32
-	for i, v := range x {
-		if v != v {
-			panic(fmt.Sprintf("stats: %s: NaN at index %d", who, i))
-		}
-		k := floatKey(v)
-		hist[0][uint8(k)]++
-		hist[1][uint8(k>>8)]++
-		hist[2][uint8(k>>16)]++
-		hist[3][uint8(k>>24)]++
-		hist[4][uint8(k>>32)]++
-		hist[5][uint8(k>>40)]++
-		hist[6][uint8(k>>48)]++
-		hist[7][uint8(k>>56)]++
-	}
+	histograms(x, [2]int{0, n}, &hist, who)
 	first := floatKey(x[0])
 	passes := 0
 	for d := range 8 {
